@@ -1,0 +1,32 @@
+/**
+ * Error codes of the API, defined once for server and client.
+ * Every error response is `{ error: { code, message, fields? } }` with one of these codes.
+ * Add new codes here (UPPER_SNAKE) rather than inventing strings at the call site.
+ */
+export const ERROR_CODES = {
+  VALIDATION_FAILED: 400,
+  MALFORMED_JSON: 400,
+  BAD_REQUEST: 400,
+  UNAUTHENTICATED: 401,
+  INVALID_CREDENTIALS: 401,
+  CSRF_INVALID: 403,
+  FORBIDDEN: 403,
+  NOT_FOUND: 404,
+  EMAIL_TAKEN: 409,
+  CONFLICT: 409,
+  PAYLOAD_TOO_LARGE: 413,
+  UNSUPPORTED_MEDIA: 415,
+  UNPROCESSABLE: 422,
+  RATE_LIMITED: 429,
+  INTERNAL: 500,
+  SERVICE_UNAVAILABLE: 503,
+} as const;
+
+export type ErrorCode = keyof typeof ERROR_CODES;
+
+/** Field-level messages, keyed by the dotted path of the field in the request body. */
+export type FieldErrors = Record<string, string>;
+
+export interface ApiErrorBody {
+  error: { code: ErrorCode; message: string; fields?: FieldErrors };
+}
