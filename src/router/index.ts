@@ -1,0 +1,153 @@
+import { createRouter, createWebHistory, type RouteLocationRaw, type RouteRecordRaw } from 'vue-router';
+import type { Role } from '@shared/types/api';
+import { setUnauthenticatedHandler } from '@/api/http';
+import AppLayout from '@/layout/AppLayout.vue';
+import OverviewView from '@/views/OverviewView.vue';
+import { useAuthStore } from '@/stores/auth';
+import { useClubStore } from '@/stores/club';
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** The page title shown in the layout header and the browser tab. */
+    title?: string;
+    /** Reachable without signing in (sign-in, sign-up). */
+    public?: boolean;
+    /** Roles in the club in view that may open the page; absent means every member. */
+    roles?: readonly Role[];
+  }
+}
+
+const STAFF: readonly Role[] = ['admin', 'coach'];
+const ADMIN: readonly Role[] = ['admin'];
+
+const routes: RouteRecordRaw[] = [
+  {
+    path: '/signin',
+    name: 'signin',
+    component: () => import('@/views/SignInView.vue'),
+    meta: { title: 'Sign in', public: true },
+  },
+  {
+    path: '/signup',
+    name: 'signup',
+    component: () => import('@/views/SignUpView.vue'),
+    meta: { title: 'Sign up', public: true },
+  },
+  {
+    path: '/',
+    component: AppLayout,
+    children: [
+      // Overview is the first page after sign-in: it ships in the main bundle, every other page is loaded on demand.
+      { path: '', name: 'overview', component: OverviewView, meta: { title: 'Overview' } },
+      {
+        path: 'squad',
+        name: 'squad',
+        component: () => import('@/views/SquadView.vue'),
+        meta: { title: 'Squad', roles: STAFF },
+      },
+      {
+        path: 'club',
+        name: 'club',
+        component: () => import('@/views/ClubView.vue'),
+        meta: { title: 'Club', roles: ADMIN },
+      },
+      // -- sessions, clips, trace routes (tracing helper) --
+      {
+        path: 'sessions',
+        name: 'sessions',
+        component: () => import('@/views/SessionsView.vue'),
+        meta: { title: 'Sessions' },
+      },
+      {
+        path: 'sessions/:sessionId(\\d+)',
+        name: 'session',
+        component: () => import('@/views/SessionView.vue'),
+        props: true,
+        meta: { title: 'Session' },
+      },
+      {
+        path: 'clips',
+        name: 'clips',
+        component: () => import('@/views/ClipsView.vue'),
+        meta: { title: 'Clips' },
+      },
+      {
+        path: 'clips/:clipId(\\d+)',
+        name: 'clip',
+        component: () => import('@/views/ClipView.vue'),
+        props: true,
+        meta: { title: 'Clip' },
+      },
+      {
+        path: 'clips/:clipId(\\d+)/trace',
+        name: 'trace',
+        component: () => import('@/views/TraceView.vue'),
+        props: true,
+        meta: { title: 'Trace' },
+      },
+      // -- end sessions, clips, trace routes (tracing helper) --
+      {
+        path: ':pathMatch(.*)*',
+        name: 'not-found',
+        component: () => import('@/views/NotFoundView.vue'),
+        meta: { title: 'Not found' },
+      },
+    ],
+  },
+];
+
+const router = createRouter({
+  history: createWebHistory(import.meta.env.BASE_URL),
+  routes,
+  scrollBehavior: (_to, _from, saved) => saved ?? { top: 0 },
+});
+
+/** Only a path of this app may be a redirect target (never another origin). */
+export function safeRedirect(value: unknown): string | null {
+  if (typeof value !== 'string' || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return null;
+  return value;
+}
+
+router.beforeEach(async (to): Promise<boolean | RouteLocationRaw> => {
+  const auth = useAuthStore();
+  if (!auth.loaded) {
+    try {
+      await auth.loadMe();
+    } catch {
+      // The server did not answer: treat the visitor as signed out; the sign-in form reports the problem on submit.
+    }
+  }
+
+  if (to.meta.public) {
+    if (auth.isSignedIn && (to.name === 'signin' || to.name === 'signup')) {
+      return safeRedirect(to.query.redirect) ?? { name: 'overview' };
+    }
+    return true;
+  }
+
+  if (!auth.isSignedIn) {
+    return to.fullPath === '/' ? { name: 'signin' } : { name: 'signin', query: { redirect: to.fullPath } };
+  }
+
+  const roles = to.meta.roles;
+  if (roles && !useClubStore().hasRole(roles)) return { name: 'overview' };
+  return true;
+});
+
+router.afterEach((to) => {
+  document.title = to.meta.title ? `${to.meta.title} · Arcwright` : 'Arcwright';
+});
+
+// The server ended the session (expired, signed out elsewhere): forget the user and ask for a sign-in,
+// coming back to the same page afterwards.
+setUnauthenticatedHandler(() => {
+  const auth = useAuthStore();
+  const wasSignedIn = auth.isSignedIn;
+  auth.forget();
+  const current = router.currentRoute.value;
+  if (wasSignedIn && !current.meta.public) {
+    void router.push({ name: 'signin', query: { redirect: current.fullPath, ended: '1' } });
+  }
+});
+
+export default router;
