@@ -1,0 +1,60 @@
+#!/usr/bin/env bash
+# `npm start`: installs what is missing, starts the private MariaDB, creates database and user, migrates,
+# seeds the demo club, builds the client, starts the fakes and the app on http://$HOST:$PORT.
+set -euo pipefail
+source "$(dirname "${BASH_SOURCE[0]}")/lib/common.sh"
+source "$ROOT/scripts/lib/deps.sh"
+source "$ROOT/scripts/lib/mariadb.sh"
+cd "$ROOT"
+
+ensure_dependencies
+db_ensure
+
+say "Applying database migrations"
+run_ts server/cli/migrate.ts || die "Migrations failed (see above). Fix the cause, then run npm start again."
+say "Seeding the demo club"
+run_ts server/cli/seed.ts || die "Seeding the demo data failed (see above)."
+
+if [ "${SKIP_BUILD:-0}" != "1" ]; then
+  say "Building the web client (vite build)"
+  npx vite build --logLevel warn || die "The web client did not build (see the errors above). Fix them, or run with SKIP_BUILD=1 to serve the last build."
+fi
+[ -f "$ROOT/dist/index.html" ] || die "dist/index.html is missing: the client was not built. Run npm run build and look at its errors."
+
+PIDS=()
+cleanup() {
+  trap - EXIT INT TERM
+  local pid
+  for pid in "${PIDS[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
+  for pid in "${PIDS[@]}"; do wait "$pid" 2>/dev/null || true; done
+}
+trap cleanup EXIT
+trap 'exit 130' INT
+trap 'exit 143' TERM
+
+if [ "$FAKES" != "0" ]; then
+  run_ts server/fakes/run.ts &
+  PIDS+=($!)
+  wait_for_http "http://127.0.0.1:$OAUTH_FAKE_PORT/health" 30 "${PIDS[-1]}" || die "The OAuth fake did not start (port $OAUTH_FAKE_PORT)."
+fi
+
+NODE_ENV="${NODE_ENV:-production}" run_ts server/index.ts &
+APP_PID=$!
+PIDS+=("$APP_PID")
+wait_for_http "http://$HOST:$PORT/api/v1/health" 60 "$APP_PID" || die "The app did not answer on http://$HOST:$PORT (see the log above)."
+
+cat <<MSG
+
+  Arcwright is running at  http://$HOST:$PORT
+
+  Demo sign-ins (password for all: arcwright-demo)
+    admin@fennickvale.example     Maren Holloway, club admin
+    coach@fennickvale.example     Teodor Quill, coach
+    athlete@fennickvale.example   Isla Brackwater, athlete
+$( [ "$FAKES" != "0" ] && echo "  \"Continue with Google\" uses the local stand-in on http://127.0.0.1:$OAUTH_FAKE_PORT" )
+
+  Stop with Ctrl+C. The database keeps running; stop it with: npm run db:stop
+
+MSG
+
+wait "$APP_PID"

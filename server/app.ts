@@ -1,0 +1,131 @@
+/**
+ * `createApp()` wires middleware, routers, the API 404, the built client and the error handler; it never
+ * listens (server/index.ts does, tests use supertest). Every API route is under `/api/v1`.
+ */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import express, { Router, type Express } from 'express';
+import helmet from 'helmet';
+import passport from 'passport';
+import { configurePassport } from './auth/passport';
+import { config } from './config';
+import { sequelize } from './db';
+import { csrfProtection } from './http/csrf';
+import { apiNotFound, errorHandler } from './http/error-handler';
+import type { LimitOptions } from './http/rate-limit';
+import { requestId } from './http/request-id';
+import { sessionMiddleware } from './http/session';
+import './http/types';
+import { athletesRouter } from './routes/athletes';
+import { authRouter } from './routes/auth';
+import { clubsRouter } from './routes/clubs';
+import { healthRouter } from './routes/health';
+import { membersRouter } from './routes/members';
+import { mountClipsApi } from './routes/clips'; // clips helper: sessions, clips, flights, jobs
+
+export interface AppOptions {
+  /** Overrides of the sign-in limit (failed attempts per IP and e-mail); tests lower it. */
+  signinLimit?: Partial<LimitOptions>;
+  /** Overrides of the sign-up limit (per IP); tests raise it. */
+  signupLimit?: Partial<LimitOptions>;
+  /** Extra API routes mounted under /api/v1 just before the API 404 (tests use it to force failures). */
+  extraApiRoutes?: (api: Router) => void;
+  /** Directory of the built client; defaults to config.clientDir. */
+  clientDir?: string;
+}
+
+function origin(url: string): string | null {
+  try {
+    return new URL(url).origin;
+  } catch {
+    return null;
+  }
+}
+
+function securityHeaders() {
+  const oauthOrigin = origin(config.google.authUrl);
+  return helmet({
+    contentSecurityPolicy: {
+      useDefaults: false,
+      directives: {
+        defaultSrc: ["'self'"],
+        baseUri: ["'self'"],
+        scriptSrc: ["'self'"],
+        // PrimeVue's styled mode injects <style> elements at run time.
+        styleSrc: ["'self'", "'unsafe-inline'"],
+        fontSrc: ["'self'", 'data:'],
+        // ECharts draws on canvas and exports data: URLs; clips and frames are shown from blob: URLs.
+        imgSrc: ["'self'", 'data:', 'blob:'],
+        mediaSrc: ["'self'", 'blob:'],
+        workerSrc: ["'self'", 'blob:'],
+        connectSrc: ["'self'"],
+        objectSrc: ["'none'"],
+        frameAncestors: ["'none'"],
+        formAction: oauthOrigin ? ["'self'", oauthOrigin] : ["'self'"],
+        ...(config.session.cookieSecure ? { upgradeInsecureRequests: [] } : {}),
+      },
+    },
+    // HSTS only makes sense behind HTTPS; on the plain-HTTP loopback default it would only confuse browsers.
+    strictTransportSecurity: config.session.cookieSecure,
+  });
+}
+
+export function createApp(options: AppOptions = {}): Express {
+  configurePassport();
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', config.trustProxy);
+  app.use(requestId);
+  app.use(securityHeaders());
+
+  const api = Router();
+  // Health answers before the session so that probes create no session rows.
+  api.use(healthRouter);
+  api.use(express.json({ limit: '1mb' }));
+  api.use(sessionMiddleware(sequelize));
+  api.use(passport.initialize());
+  api.use(passport.session());
+  api.use(csrfProtection);
+
+  api.use(
+    authRouter({
+      signinLimit: { windowMs: config.rateLimit.signinWindowMs, max: config.rateLimit.signinMax, ...options.signinLimit },
+      signupLimit: { windowMs: config.rateLimit.signupWindowMs, max: config.rateLimit.signupMax, ...options.signupLimit },
+    }),
+  );
+  api.use(clubsRouter);
+  api.use(membersRouter);
+  api.use(athletesRouter);
+
+  // -- sessions, clips, flights, jobs (clips helper) --
+  mountClipsApi(api);
+  // -- end sessions, clips, flights, jobs --
+
+  options.extraApiRoutes?.(api);
+  api.use(apiNotFound);
+  app.use('/api/v1', api);
+  app.use('/api', apiNotFound);
+
+  const clientDir = options.clientDir ?? config.clientDir;
+  app.use(
+    express.static(clientDir, {
+      index: false,
+      setHeaders: (res, path) => {
+        // Vite puts content-hashed files under assets/: they never change under one name.
+        if (/[\\/]assets[\\/]/.test(path)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+      },
+    }),
+  );
+  app.get('/{*splat}', (_req, res) => {
+    const index = join(clientDir, 'index.html');
+    if (!existsSync(index)) {
+      res.status(503).type('text/plain').send('The web client is not built yet. Run `npm run build` (or `npm start`), then reload.');
+      return;
+    }
+    res.setHeader('Cache-Control', 'no-cache');
+    res.sendFile(index);
+  });
+  app.use(apiNotFound);
+  app.use(errorHandler);
+  return app;
+}

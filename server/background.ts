@@ -1,0 +1,22 @@
+/**
+ * Background work of the web process: `WORKERS_IN_WEB` job workers (default 1; 0 leaves the jobs to
+ * `npm run worker` processes). Started by server/index.ts after the server listens.
+ */
+import { JOB_HANDLERS } from './jobs/handlers';
+import { jobSettings } from './jobs/settings';
+import { JobWorker } from './jobs/worker';
+
+let worker: JobWorker | null = null;
+
+export async function startBackgroundWork(): Promise<void> {
+  if (worker || jobSettings.workersInWeb === 0) return;
+  worker = new JobWorker({ handlers: JOB_HANDLERS, concurrency: jobSettings.workersInWeb, name: 'web' });
+  worker.start();
+}
+
+/** Stops what startBackgroundWork started (called on shutdown): running jobs finish or go back to the queue. */
+export async function stopBackgroundWork(): Promise<void> {
+  const current = worker;
+  worker = null;
+  await current?.stop();
+}

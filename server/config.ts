@@ -1,0 +1,113 @@
+/**
+ * Configuration from the environment, read once at start-up.
+ * Every variable is documented in `.env.example`; the defaults serve the single-machine case
+ * (`npm start` on 127.0.0.1 with the private MariaDB of `scripts/lib/mariadb.sh`).
+ */
+import { existsSync } from 'node:fs';
+import { resolve } from 'node:path';
+
+// A `.env` in the working directory fills in variables the real environment does not set (Node's loader
+// never overrides), so CI and scripts can still pass their own values. ENV_FILE=none skips it.
+const envFileSetting = process.env.ENV_FILE ?? '.env';
+if (envFileSetting !== 'none') {
+  const envFile = resolve(process.cwd(), envFileSetting);
+  if (existsSync(envFile)) process.loadEnvFile(envFile);
+}
+
+const env = process.env;
+
+function str(name: string, fallback: string): string {
+  const value = env[name];
+  return value === undefined || value === '' ? fallback : value;
+}
+
+function int(name: string, fallback: number): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const value = Number(raw);
+  if (!Number.isInteger(value) || value < 0) {
+    throw new Error(`Environment variable ${name} must be a whole number >= 0 (got "${raw}"). Fix it in .env or the environment.`);
+  }
+  return value;
+}
+
+function flag(name: string, fallback: boolean): boolean {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  return !['0', 'false', 'no', 'off'].includes(raw.toLowerCase());
+}
+
+const nodeEnv = str('NODE_ENV', 'development');
+// Vitest sets VITEST=true in its workers; either signal puts the server in test mode.
+const isTest = nodeEnv === 'test' || env.VITEST === 'true';
+const host = str('HOST', '127.0.0.1');
+const port = int('PORT', 4780);
+const oauthFakePort = int('OAUTH_FAKE_PORT', 4781);
+const oauthFakeBase = `http://127.0.0.1:${oauthFakePort}`;
+const dataDir = resolve(process.cwd(), str('DATA_DIR', '.data'));
+
+/** The development session secret; fine on loopback, replaced through SESSION_SECRET anywhere else. */
+export const DEFAULT_SESSION_SECRET = 'arcwright-local-session-secret-change-me';
+
+export const config = {
+  nodeEnv,
+  isTest,
+  isProduction: nodeEnv === 'production',
+  host,
+  port,
+  /** Where the built client lives (served with an SPA fallback). Relative paths resolve from the working directory. */
+  clientDir: resolve(process.cwd(), str('CLIENT_DIR', 'dist')),
+  /** Prefix for redirects after Google sign-in; empty keeps them relative to the host that called back. */
+  publicUrl: str('PUBLIC_URL', ''),
+  logLevel: str('LOG_LEVEL', isTest ? 'error' : 'info'),
+  dataDir,
+  db: {
+    host: str('DB_HOST', '127.0.0.1'),
+    port: int('DB_PORT', 3398),
+    // Note: under Vitest the API tests always use their own database, whatever DB_NAME says,
+    // so a stray .env can never point the test suite at the development data.
+    name: isTest ? str('TEST_DB_NAME', 'arcwright_test') : str('DB_NAME', 'arcwright'),
+    user: str('DB_USER', 'arcwright'),
+    password: str('DB_PASSWORD', 'arcwright-local'),
+    poolMax: int('DB_POOL_MAX', 10),
+    logSql: flag('DB_LOG_SQL', false),
+  },
+  session: {
+    secret: str('SESSION_SECRET', DEFAULT_SESSION_SECRET),
+    cookieName: str('SESSION_COOKIE_NAME', 'arcwright.sid'),
+    cookieSecure: flag('COOKIE_SECURE', false),
+    maxAgeMs: int('SESSION_MAX_AGE_HOURS', 24 * 14) * 3600 * 1000,
+  },
+  rateLimit: {
+    signinWindowMs: int('SIGNIN_RATE_LIMIT_WINDOW_MINUTES', 15) * 60 * 1000,
+    signinMax: int('SIGNIN_RATE_LIMIT_MAX', 10),
+    signupWindowMs: int('SIGNUP_RATE_LIMIT_WINDOW_MINUTES', 60) * 60 * 1000,
+    signupMax: int('SIGNUP_RATE_LIMIT_MAX', 30),
+  },
+  /** Number of reverse proxies in front of the app (0 when it listens directly), for req.ip. */
+  trustProxy: int('TRUST_PROXY', 0),
+  fakes: {
+    enabled: flag('FAKES', true),
+    oauthPort: oauthFakePort,
+    /** The invented person the OAuth fake approves when no `login_hint` is given. */
+    oauthDefaultEmail: str('OAUTH_FAKE_EMAIL', 'wren.ashdown@fennickvale.example'),
+    oauthDefaultName: str('OAUTH_FAKE_NAME', 'Wren Ashdown'),
+  },
+  google: {
+    enabled: flag('GOOGLE_SIGNIN', true),
+    clientId: str('GOOGLE_CLIENT_ID', 'arcwright-local-client'),
+    clientSecret: str('GOOGLE_CLIENT_SECRET', 'arcwright-local-secret'),
+    authUrl: str('GOOGLE_AUTH_URL', `${oauthFakeBase}/authorize`),
+    tokenUrl: str('GOOGLE_TOKEN_URL', `${oauthFakeBase}/token`),
+    userinfoUrl: str('GOOGLE_USERINFO_URL', `${oauthFakeBase}/userinfo`),
+    callbackUrl: str('GOOGLE_CALLBACK_URL', `http://${host}:${port}/api/v1/auth/google/callback`),
+  },
+  storage: {
+    dir: resolve(process.cwd(), str('STORAGE_DIR', '.data/storage')),
+  },
+  uploads: {
+    maxBytes: int('UPLOAD_MAX_BYTES', 1024 * 1024 * 1024),
+  },
+};
+
+export type Config = typeof config;

@@ -1,0 +1,60 @@
+/**
+ * Rate limits of the sign-in and sign-up endpoints (express-rate-limit, in-memory per process).
+ */
+import type { Request, RequestHandler } from 'express';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { ApiError } from './errors';
+
+export interface LimitOptions {
+  windowMs: number;
+  max: number;
+}
+
+function minutes(ms: number): string {
+  const m = Math.max(1, Math.round(ms / 60000));
+  return `${m} minute${m === 1 ? '' : 's'}`;
+}
+
+function ipOf(req: Request): string {
+  return ipKeyGenerator(req.ip ?? req.socket.remoteAddress ?? 'unknown');
+}
+
+/**
+ * Failed sign-ins per IP address and e-mail: successful ones do not count, so a coach who types the
+ * password right is never locked out by earlier typos beyond the window.
+ */
+export function signinLimiter({ windowMs, max }: LimitOptions): RequestHandler {
+  return rateLimit({
+    windowMs,
+    limit: max,
+    skipSuccessfulRequests: true,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => {
+      const email = typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase() : '';
+      return `${ipOf(req)}|${email}`;
+    },
+    handler: (_req, _res, next) => {
+      next(
+        new ApiError(
+          'RATE_LIMITED',
+          `Too many sign-in attempts for this e-mail. Wait ${minutes(windowMs)} and try again, or ask a club admin for help.`,
+        ),
+      );
+    },
+  });
+}
+
+/** Sign-ups per IP address. */
+export function signupLimiter({ windowMs, max }: LimitOptions): RequestHandler {
+  return rateLimit({
+    windowMs,
+    limit: max,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => ipOf(req),
+    handler: (_req, _res, next) => {
+      next(new ApiError('RATE_LIMITED', `Too many new accounts from this address. Wait ${minutes(windowMs)} and try again.`));
+    },
+  });
+}

@@ -1,0 +1,38 @@
+/**
+ * express-session stored in MariaDB through connect-session-sequelize (table `auth_sessions`, created by
+ * migration 0005, never by the store's sync()).
+ */
+import connectSessionSequelize from 'connect-session-sequelize';
+import session from 'express-session';
+import type { RequestHandler } from 'express';
+import type { Sequelize } from 'sequelize';
+import { config } from '../config';
+
+const SequelizeStore = connectSessionSequelize(session.Store);
+
+export function sessionMiddleware(sequelize: Sequelize): RequestHandler {
+  const store = new SequelizeStore({
+    db: sequelize,
+    modelKey: 'AuthSession',
+    tableName: 'auth_sessions',
+    checkExpirationInterval: 15 * 60 * 1000,
+    expiration: config.session.maxAgeMs,
+  });
+  return session({
+    name: config.session.cookieName,
+    secret: config.session.secret,
+    store,
+    resave: false,
+    // Sessions are created when something is stored (a CSRF token, a sign-in), not for every visitor.
+    saveUninitialized: false,
+    rolling: false,
+    proxy: config.trustProxy > 0,
+    cookie: {
+      httpOnly: true,
+      sameSite: 'lax',
+      secure: config.session.cookieSecure,
+      maxAge: config.session.maxAgeMs,
+      path: '/',
+    },
+  });
+}

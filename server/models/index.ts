@@ -1,0 +1,67 @@
+/**
+ * Initialises every model on the shared Sequelize instance and declares ALL associations, in one place.
+ * Import models from here (not from their files) so they are always initialised before use.
+ */
+import { sequelize } from '../db';
+import { AthleteProfile, initAthleteProfile } from './athlete-profile';
+import { Club, initClub } from './club';
+import { Membership, initMembership } from './membership';
+import { User, initUser } from './user';
+
+initUser(sequelize);
+initClub(sequelize);
+initMembership(sequelize);
+initAthleteProfile(sequelize);
+
+// Foreign keys are `<model>_id` columns; deleting a club removes its memberships and profiles (see migrations).
+User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
+Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+Club.hasMany(Membership, { foreignKey: 'clubId', as: 'memberships' });
+Membership.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+Club.hasMany(AthleteProfile, { foreignKey: 'clubId', as: 'athleteProfiles' });
+AthleteProfile.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+User.hasMany(AthleteProfile, { foreignKey: 'userId', as: 'athleteProfiles' });
+AthleteProfile.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+
+// -- sessions, clips, flights, jobs (clips helper) --
+import { Calibration, initCalibration } from './calibration';
+import { Clip, initClip } from './clip';
+import { Fit, initFit } from './fit';
+import { Flight, initFlight } from './flight';
+import { FlightAction, initFlightAction } from './flight-action';
+import { Job, initJob } from './job';
+import { Session, initSession } from './session';
+import { TrackPoint, initTrackPoint } from './track-point';
+
+initSession(sequelize);
+initClip(sequelize);
+initCalibration(sequelize);
+initFlightAction(sequelize);
+initFlight(sequelize);
+initTrackPoint(sequelize);
+initFit(sequelize);
+initJob(sequelize);
+
+// Deleting a session removes its clips, their flights, points, fits, calibrations and jobs (ON DELETE CASCADE in the migrations);
+// the service removes the stored files after the commit.
+Club.hasMany(Session, { foreignKey: 'clubId', as: 'sessions' });
+Session.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+Session.hasMany(Clip, { foreignKey: 'sessionId', as: 'clips' });
+Clip.belongsTo(Session, { foreignKey: 'sessionId', as: 'session' });
+Clip.hasMany(Flight, { foreignKey: 'clipId', as: 'flights' });
+Flight.belongsTo(Clip, { foreignKey: 'clipId', as: 'clip' });
+Clip.hasMany(Calibration, { foreignKey: 'clipId', as: 'calibrations' });
+Calibration.belongsTo(Clip, { foreignKey: 'clipId', as: 'clip' });
+AthleteProfile.hasMany(Flight, { foreignKey: 'athleteProfileId', as: 'flights' });
+Flight.belongsTo(AthleteProfile, { foreignKey: 'athleteProfileId', as: 'athlete' });
+Flight.hasMany(TrackPoint, { foreignKey: 'flightId', as: 'points' });
+TrackPoint.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
+Flight.hasMany(Fit, { foreignKey: 'flightId', as: 'fits' });
+Fit.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
+Club.hasMany(FlightAction, { foreignKey: 'clubId', as: 'flightActions' });
+Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
+
+export { Calibration, Clip, Fit, Flight, FlightAction, Job, Session, TrackPoint };
+// -- end sessions, clips, flights, jobs --
+
+export { sequelize, AthleteProfile, Club, Membership, User };

@@ -1,0 +1,19 @@
+import { Router } from 'express';
+import { memberRoleSchema, type MemberRoleBody } from '../../shared/schemas/club';
+import { parseId } from '../http/errors';
+import { clubAccess, clubOf } from '../middleware/authorize';
+import { validate } from '../middleware/validate';
+import { changeMemberRole, listMembers } from '../services/clubs';
+
+/** Members of a club and their roles. */
+export const membersRouter = Router();
+
+membersRouter.get('/clubs/:clubId/members', clubAccess('admin', 'coach'), async (req, res) => {
+  const members = await listMembers(clubOf(req).id);
+  res.json({ data: members, meta: { total: members.length } });
+});
+
+membersRouter.patch('/clubs/:clubId/members/:memberId', clubAccess('admin'), validate(memberRoleSchema), async (req, res) => {
+  const memberId = parseId(req.params.memberId, 'member');
+  res.json({ data: await changeMemberRole(clubOf(req).id, memberId, (req.body as MemberRoleBody).role) });
+});

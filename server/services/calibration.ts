@@ -1,0 +1,120 @@
+/**
+ * Calibration of clips: stores each calibration (the previous one is kept, superseded, for the fits
+ * that used it), answers the current one, and enqueues refits of the clip's flights on a change.
+ */
+import { Op, type Transaction } from 'sequelize';
+import { BALLS } from '../../shared/physics';
+import {
+  ballCheck,
+  computeCalibration,
+  type Calibration as CalibrationDto,
+  type CalibrationFrame,
+  type CalibrationInput,
+  type PixelPoint,
+} from '../../shared/schemas/calibration';
+import { sequelize } from '../db';
+import { ApiError } from '../http/errors';
+import type { ClubContext } from '../http/types';
+import { Calibration, type Clip } from '../models';
+import { findVisibleClip } from './clips';
+import { enqueueRefits } from './fits';
+
+export function toCalibrationDto(cal: Calibration): CalibrationDto {
+  const frame = computeCalibration(cal.input);
+  return {
+    ...cal.input,
+    level: cal.input.level ?? null,
+    ball: cal.input.ball ?? null,
+    ...frame,
+    id: cal.id,
+    clipId: cal.clipId,
+    ballCheck: cal.ballCheck ?? null,
+    updatedAt: cal.updatedAt.toISOString(),
+  };
+}
+
+/** Current calibrations of several clips. */
+export async function currentCalibrations(clipIds: number[], transaction?: Transaction): Promise<Map<number, Calibration>> {
+  const out = new Map<number, Calibration>();
+  if (clipIds.length === 0) return out;
+  const rows = await Calibration.findAll({ where: { clipId: { [Op.in]: clipIds }, supersededAt: null }, order: [['id', 'DESC']], transaction });
+  for (const row of rows) if (!out.has(row.clipId)) out.set(row.clipId, row);
+  return out;
+}
+
+export async function currentCalibration(clipId: number, transaction?: Transaction): Promise<Calibration | null> {
+  return (await currentCalibrations([clipId], transaction)).get(clipId) ?? null;
+}
+
+/** The mapping of a stored calibration. */
+export function frameOf(cal: Calibration): CalibrationFrame {
+  return computeCalibration(cal.input);
+}
+
+/** Points must lie in the frame (a calibration outside the picture is a misclick). */
+function checkInside(clip: Clip, input: CalibrationInput): void {
+  const fields: Record<string, string> = {};
+  const check = (path: string, p: PixelPoint) => {
+    if (p.xPx < 0 || p.yPx < 0 || p.xPx > clip.width || p.yPx > clip.height) {
+      fields[path] = `This point (${Math.round(p.xPx)}, ${Math.round(p.yPx)}) lies outside the ${clip.width}×${clip.height} frame: place it on the picture.`;
+    }
+  };
+  check('scale.a', input.scale.a);
+  check('scale.b', input.scale.b);
+  if (input.level) {
+    check('level.a', input.level.a);
+    check('level.b', input.level.b);
+  }
+  check('origin', input.origin);
+  const names = Object.keys(fields);
+  if (names.length > 0) throw new ApiError('VALIDATION_FAILED', `Check ${names.join(', ')}. ${fields[names[0]]}`, fields);
+}
+
+export async function getCalibration(club: ClubContext, clipId: number): Promise<CalibrationDto | null> {
+  const clip = await findVisibleClip(club, clipId);
+  const cal = await currentCalibration(clip.id);
+  return cal ? toCalibrationDto(cal) : null;
+}
+
+/**
+ * Stores a new calibration of the clip and enqueues refits of its traced and fitted flights.
+ * @returns the calibration and the ids of the refit jobs
+ */
+export async function setCalibration(club: ClubContext, clipId: number, input: CalibrationInput): Promise<CalibrationDto & { refitJobIds: number[] }> {
+  const clip = await findVisibleClip(club, clipId);
+  checkInside(clip, input);
+  const frame = computeCalibration(input);
+  let check = null;
+  if (input.ball) {
+    const spec = BALLS[input.ball.ballId];
+    if (!spec) {
+      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue.`, {
+        'ball.ballId': 'Pick a ball from the catalogue.',
+      });
+    }
+    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, spec.diameterM.nominal);
+  }
+  const { cal, jobIds } = await sequelize.transaction(async (transaction) => {
+    await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });
+    const created = await Calibration.create(
+      {
+        clubId: club.id,
+        clipId: clip.id,
+        input,
+        metresPerPixel: frame.metresPerPixel,
+        levelAngleDeg: frame.levelAngleDeg,
+        ballCheck: check,
+        supersededAt: null,
+      },
+      { transaction },
+    );
+    const ids = await enqueueRefits(club.id, { clipId: clip.id }, transaction);
+    return { cal: created, jobIds: ids };
+  });
+  return { ...toCalibrationDto(cal), refitJobIds: jobIds };
+}
+
+export async function deleteCalibration(club: ClubContext, clipId: number): Promise<void> {
+  const clip = await findVisibleClip(club, clipId);
+  await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null } });
+}

@@ -1,0 +1,139 @@
+/**
+ * Club profile, Overview counts, members and their roles.
+ */
+import { fn, col } from 'sequelize';
+import type { ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary } from '../../shared/schemas/club';
+import type { Role } from '../../shared/types/api';
+import { withTransaction } from '../db';
+import { ApiError, notFound } from '../http/errors';
+import type { ClubContext } from '../http/types';
+import { AthleteProfile, Club, Membership, User } from '../models';
+
+export function toClubProfile(club: Club): ClubProfile {
+  return {
+    id: club.id,
+    name: club.name,
+    sportFocus: club.sportFocus,
+    units: club.units,
+    defaultConditions: club.defaultConditions ?? null,
+  };
+}
+
+async function findClub(clubId: number): Promise<Club> {
+  const club = await Club.findByPk(clubId);
+  if (!club) throw notFound('club');
+  return club;
+}
+
+export async function getClub(clubId: number): Promise<ClubProfile> {
+  return toClubProfile(await findClub(clubId));
+}
+
+export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<ClubProfile> {
+  const club = await findClub(clubId);
+  if (body.name !== undefined) club.name = body.name;
+  if (body.sportFocus !== undefined) club.sportFocus = body.sportFocus;
+  if (body.units !== undefined) club.units = body.units;
+  await club.save();
+  return toClubProfile(club);
+}
+
+/**
+ * A count shown on the Overview. Later features register theirs (sessions, clips, flights...) with
+ * `registerOverviewCount`; the counter receives the club context so it can scope an athlete to their own data.
+ */
+export type OverviewCounter = (club: ClubContext) => Promise<number>;
+const overviewCounters = new Map<string, OverviewCounter>();
+
+export function registerOverviewCount(key: string, counter: OverviewCounter): void {
+  overviewCounters.set(key, counter);
+}
+
+export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
+  const club = await findClub(clubCtx.id);
+  const byRole = (await Membership.findAll({
+    where: { clubId: club.id },
+    attributes: ['role', [fn('COUNT', col('id')), 'n']],
+    group: ['role'],
+    raw: true,
+  })) as unknown as { role: Role; n: number | string }[];
+  const roleCount = (role: Role) => Number(byRole.find((r) => r.role === role)?.n ?? 0);
+  const athleteProfiles =
+    clubCtx.role === 'athlete'
+      ? clubCtx.athleteProfileId === null
+        ? 0
+        : 1
+      : await AthleteProfile.count({ where: { clubId: club.id } });
+  const counts: ClubOverview['counts'] = {
+    members: roleCount('admin') + roleCount('coach') + roleCount('athlete'),
+    admins: roleCount('admin'),
+    coaches: roleCount('coach'),
+    athletes: roleCount('athlete'),
+    athleteProfiles,
+  };
+  for (const [key, counter] of overviewCounters) counts[key] = await counter(clubCtx);
+  return {
+    club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
+    role: clubCtx.role,
+    counts,
+  };
+}
+
+async function memberSummaries(clubId: number, where: { id?: number } = {}): Promise<MemberSummary[]> {
+  const memberships = await Membership.findAll({
+    where: { clubId, ...where },
+    include: [{ model: User, as: 'user', attributes: ['id', 'email', 'displayName'] }],
+    order: [['id', 'ASC']],
+  });
+  const profiles = await AthleteProfile.findAll({ where: { clubId }, attributes: ['id', 'userId'] });
+  const profileByUser = new Map(profiles.filter((p) => p.userId !== null).map((p) => [p.userId as number, p.id]));
+  return memberships.map((m) => ({
+    id: m.id,
+    userId: m.userId,
+    displayName: m.user?.displayName ?? '',
+    email: m.user?.email ?? '',
+    role: m.role,
+    athleteProfileId: profileByUser.get(m.userId) ?? null,
+  }));
+}
+
+export async function listMembers(clubId: number): Promise<MemberSummary[]> {
+  const members = await memberSummaries(clubId);
+  return members.sort((a, b) => a.displayName.localeCompare(b.displayName) || a.id - b.id);
+}
+
+/**
+ * Changes a member's role. The last admin cannot be demoted (the club would have nobody to run it).
+ * A member made athlete gets an athlete profile when they have none, so their flights can be tagged.
+ */
+export async function changeMemberRole(clubId: number, memberId: number, role: Role): Promise<MemberSummary> {
+  await withTransaction(async (transaction) => {
+    const membership = await Membership.findOne({
+      where: { id: memberId, clubId },
+      include: [{ model: User, as: 'user', attributes: ['id', 'displayName'] }],
+      transaction,
+      lock: transaction.LOCK.UPDATE,
+    });
+    if (!membership) throw notFound('member');
+    if (membership.role === role) return;
+    if (membership.role === 'admin') {
+      const admins = await Membership.findAll({ where: { clubId, role: 'admin' }, transaction, lock: transaction.LOCK.UPDATE });
+      if (admins.length <= 1) {
+        throw new ApiError('CONFLICT', 'This member is the club’s only admin. Make another member admin first, then change this role.');
+      }
+    }
+    membership.role = role;
+    await membership.save({ transaction });
+    if (role === 'athlete') {
+      const profile = await AthleteProfile.findOne({ where: { clubId, userId: membership.userId }, transaction });
+      if (!profile) {
+        await AthleteProfile.create(
+          { clubId, userId: membership.userId, displayName: membership.user?.displayName ?? 'Athlete', birthYear: null, dominantSide: null, position: null },
+          { transaction },
+        );
+      }
+    }
+  });
+  const [summary] = await memberSummaries(clubId, { id: memberId });
+  return summary;
+}

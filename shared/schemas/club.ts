@@ -1,0 +1,154 @@
+/**
+ * Request bodies about clubs, members and athlete profiles, shared by client forms and server routes.
+ */
+import { z } from 'zod';
+import { ROLES } from '../types/api';
+
+/** Sport focus of a club; the label is what the client shows. */
+export const SPORT_FOCUSES = [
+  'multi-sport',
+  'rugby',
+  'american-football',
+  'australian-football',
+  'gaelic-games',
+  'soccer',
+  'baseball-softball',
+  'cricket',
+  'athletics-throws',
+  'volleyball',
+  'other',
+] as const;
+export type SportFocus = (typeof SPORT_FOCUSES)[number];
+export const SPORT_FOCUS_LABELS: Record<SportFocus, string> = {
+  'multi-sport': 'Multi-sport',
+  rugby: 'Rugby',
+  'american-football': 'American football',
+  'australian-football': 'Australian football',
+  'gaelic-games': 'Gaelic games',
+  soccer: 'Soccer',
+  'baseball-softball': 'Baseball and softball',
+  cricket: 'Cricket',
+  'athletics-throws': 'Athletics throws',
+  volleyball: 'Volleyball',
+  other: 'Other',
+};
+
+export const UNITS = ['metric', 'imperial'] as const;
+export type Units = (typeof UNITS)[number];
+
+export const DOMINANT_SIDES = ['left', 'right', 'both'] as const;
+export type DominantSide = (typeof DOMINANT_SIDES)[number];
+
+export const sportFocusSchema = z.enum(SPORT_FOCUSES, {
+  error: `Pick a sport focus from the list (${SPORT_FOCUSES.join(', ')}).`,
+});
+export const unitsSchema = z.enum(UNITS, { error: 'Pick metric or imperial units.' });
+export const roleSchema = z.enum(ROLES, { error: 'Pick a role: admin, coach or athlete.' });
+
+export const clubUpdateSchema = z
+  .object({
+    name: z
+      .string({ error: 'Enter the club name.' })
+      .trim()
+      .min(2, { error: 'Enter the club name (at least 2 characters).' })
+      .max(120, { error: 'Keep the club name to 120 characters or fewer.' })
+      .optional(),
+    sportFocus: sportFocusSchema.optional(),
+    units: unitsSchema.optional(),
+  })
+  .strict()
+  .refine((body) => Object.keys(body).length > 0, { error: 'Change at least one of name, sport focus or units.' });
+export type ClubUpdateBody = z.infer<typeof clubUpdateSchema>;
+
+export const memberRoleSchema = z.object({ role: roleSchema }).strict();
+export type MemberRoleBody = z.infer<typeof memberRoleSchema>;
+
+const thisYear = new Date().getFullYear();
+
+const athleteFields = {
+  displayName: z
+    .string({ error: 'Enter the athlete’s name.' })
+    .trim()
+    .min(1, { error: 'Enter the athlete’s name.' })
+    .max(80, { error: 'Keep the name to 80 characters or fewer.' }),
+  birthYear: z
+    .number({ error: 'Enter the birth year as a number, such as 2009.' })
+    .int({ error: 'Enter the birth year as a whole number, such as 2009.' })
+    .min(1900, { error: 'Enter a birth year from 1900 on.' })
+    .max(thisYear, { error: `Enter a birth year no later than ${thisYear}.` })
+    .nullable(),
+  dominantSide: z.enum(DOMINANT_SIDES, { error: 'Pick the dominant side: left, right or both.' }).nullable(),
+  position: z
+    .string({ error: 'Enter the position or event as text.' })
+    .trim()
+    .max(80, { error: 'Keep the position or event to 80 characters or fewer.' })
+    .nullable(),
+  userId: z
+    .number({ error: 'Pick the member to link, or leave it empty.' })
+    .int({ error: 'Pick the member to link, or leave it empty.' })
+    .positive({ error: 'Pick the member to link, or leave it empty.' })
+    .nullable(),
+};
+
+export const athleteCreateSchema = z
+  .object({
+    displayName: athleteFields.displayName,
+    birthYear: athleteFields.birthYear.optional(),
+    dominantSide: athleteFields.dominantSide.optional(),
+    position: athleteFields.position.optional(),
+    userId: athleteFields.userId.optional(),
+  })
+  .strict();
+export type AthleteCreateBody = z.infer<typeof athleteCreateSchema>;
+
+export const athleteUpdateSchema = z
+  .object({
+    displayName: athleteFields.displayName.optional(),
+    birthYear: athleteFields.birthYear.optional(),
+    dominantSide: athleteFields.dominantSide.optional(),
+    position: athleteFields.position.optional(),
+    userId: athleteFields.userId.optional(),
+  })
+  .strict()
+  .refine((body) => Object.keys(body).length > 0, { error: 'Change at least one field of the athlete profile.' });
+export type AthleteUpdateBody = z.infer<typeof athleteUpdateSchema>;
+
+// Response shapes of the club endpoints (the request shapes are the schemas above).
+
+export interface ClubProfile {
+  id: number;
+  name: string;
+  sportFocus: SportFocus;
+  units: Units;
+  /** Conditions used when a session gives none (SI units); null until the club sets them. */
+  defaultConditions: Record<string, number> | null;
+}
+
+export interface MemberSummary {
+  /** The membership id, used in `/members/:memberId`. */
+  id: number;
+  userId: number;
+  displayName: string;
+  email: string;
+  role: (typeof ROLES)[number];
+  athleteProfileId: number | null;
+}
+
+export interface AthleteProfileSummary {
+  id: number;
+  displayName: string;
+  birthYear: number | null;
+  dominantSide: DominantSide | null;
+  position: string | null;
+  userId: number | null;
+}
+
+export interface ClubOverview {
+  club: { id: number; name: string; sportFocus: SportFocus; units: Units };
+  role: (typeof ROLES)[number];
+  /**
+   * Counts shown on the Overview. `members`, `admins`, `coaches`, `athletes` count memberships;
+   * `athleteProfiles` counts profiles (an athlete sees only their own). Later features add keys.
+   */
+  counts: { members: number; admins: number; coaches: number; athletes: number; athleteProfiles: number } & Record<string, number>;
+}

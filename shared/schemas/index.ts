@@ -1,0 +1,3 @@
+/** Every request-body schema shared by client and server. */
+export * from './auth';
+export * from './club';

@@ -1,0 +1,178 @@
+/**
+ * Global setup of the browser tests (vitest.e2e.config.ts): a fresh database `arcwright_e2e` (E2E_DB_NAME)
+ * migrated and seeded with the demo club, then the OAuth fake and the app (serving the built client from
+ * dist/) started as child processes on free ports (E2E_PORT default 4790, E2E_OAUTH_PORT default 4791).
+ * The app's URL is provided to tests as `inject('baseUrl')`, set as E2E_BASE_URL and written to
+ * test-results/e2e-base-url.txt. Server output goes to test-results/e2e-server.log. Teardown stops both.
+ */
+import { execFileSync, spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { createWriteStream, existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:net';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import mariadb from 'mariadb';
+import type { TestProject } from 'vitest/node';
+
+declare module 'vitest' {
+  export interface ProvidedContext {
+    baseUrl: string;
+  }
+}
+
+const HOST = '127.0.0.1';
+const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+
+// Note: this project (tsconfig.e2e.json) cannot import tests/support, so the two database steps are repeated here.
+const dbSettings = {
+  host: process.env.DB_HOST ?? '127.0.0.1',
+  port: Number(process.env.DB_PORT ?? 3398),
+  user: process.env.DB_USER ?? 'arcwright',
+  password: process.env.DB_PASSWORD ?? 'arcwright-local',
+};
+
+/** Starts the private MariaDB when needed, with the same script as npm start. */
+function ensurePrivateDb(): void {
+  execFileSync('bash', [join(ROOT, 'scripts', 'db.sh'), 'start'], { cwd: ROOT, stdio: ['ignore', 'inherit', 'inherit'] });
+}
+
+async function recreateDatabase(name: string): Promise<void> {
+  if (!/^[A-Za-z0-9_]+$/.test(name)) throw new Error(`Refusing to use database name "${name}": letters, digits and _ only.`);
+  const conn = await mariadb.createConnection({ ...dbSettings, connectTimeout: 5000 });
+  try {
+    await conn.query(`DROP DATABASE IF EXISTS \`${name}\``);
+    await conn.query(`CREATE DATABASE \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
+  } finally {
+    await conn.end();
+  }
+}
+
+function portIsFree(port: number): Promise<boolean> {
+  return new Promise((resolve) => {
+    const server = createServer();
+    server.once('error', () => resolve(false));
+    server.listen(port, HOST, () => server.close(() => resolve(true)));
+  });
+}
+
+/** The preferred port when free, else one the system picks. */
+async function freePort(preferred: number): Promise<number> {
+  if (await portIsFree(preferred)) return preferred;
+  return new Promise((resolve, reject) => {
+    const server = createServer();
+    server.once('error', reject);
+    server.listen(0, HOST, () => {
+      const address = server.address();
+      const port = typeof address === 'object' && address ? address.port : 0;
+      server.close(() => resolve(port));
+    });
+  });
+}
+
+async function waitForHealth(url: string, child: ChildProcess, seconds: number): Promise<void> {
+  const deadline = Date.now() + seconds * 1000;
+  while (Date.now() < deadline) {
+    if (child.exitCode !== null) throw new Error(`The process for ${url} exited with code ${child.exitCode}; see test-results/e2e-server.log.`);
+    try {
+      const res = await fetch(url);
+      if (res.ok) return;
+    } catch {
+      // not listening yet
+    }
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  throw new Error(`${url} did not answer within ${seconds} s; see test-results/e2e-server.log.`);
+}
+
+function stop(child: ChildProcess): Promise<void> {
+  return new Promise((resolve) => {
+    if (child.exitCode !== null || child.signalCode !== null) {
+      resolve();
+      return;
+    }
+    const timer = setTimeout(() => child.kill('SIGKILL'), 5000);
+    child.once('exit', () => {
+      clearTimeout(timer);
+      resolve();
+    });
+    child.kill('SIGTERM');
+  });
+}
+
+export default async function setup(project: TestProject): Promise<() => Promise<void>> {
+  const resultsDir = join(ROOT, 'test-results');
+  mkdirSync(resultsDir, { recursive: true });
+  if (!existsSync(join(ROOT, 'dist', 'index.html'))) {
+    throw new Error('dist/index.html is missing: build the client first with `npx vite build` (npm test does it).');
+  }
+  if (process.env.ARCWRIGHT_SKIP_DB !== '1' && process.env.DB_PRIVATE !== '0') ensurePrivateDb();
+  const dbName = process.env.E2E_DB_NAME ?? 'arcwright_e2e';
+  if (dbName === (process.env.DB_NAME ?? 'arcwright')) {
+    throw new Error(`E2E_DB_NAME (${dbName}) equals DB_NAME: the browser tests drop their database. Give them their own name.`);
+  }
+  await recreateDatabase(dbName);
+
+  const appPort = await freePort(Number(process.env.E2E_PORT ?? 4790));
+  const oauthPort = await freePort(Number(process.env.E2E_OAUTH_PORT ?? 4791));
+  const baseUrl = `http://${HOST}:${appPort}`;
+  const oauthBase = `http://${HOST}:${oauthPort}`;
+
+  // The children are ordinary servers, not Vitest workers: drop Vitest's variables so they use DB_NAME.
+  const env: NodeJS.ProcessEnv = Object.fromEntries(Object.entries(process.env).filter(([key]) => !key.startsWith('VITEST')));
+  Object.assign(env, {
+    NODE_ENV: 'production',
+    HOST,
+    PORT: String(appPort),
+    DB_HOST: dbSettings.host,
+    DB_PORT: String(dbSettings.port),
+    DB_USER: dbSettings.user,
+    DB_PASSWORD: dbSettings.password,
+    DB_NAME: dbName,
+    CLIENT_DIR: join(ROOT, 'dist'),
+    STORAGE_DIR: join(ROOT, '.data', 'e2e-storage'),
+    OAUTH_FAKE_PORT: String(oauthPort),
+    GOOGLE_SIGNIN: '1',
+    GOOGLE_AUTH_URL: `${oauthBase}/authorize`,
+    GOOGLE_TOKEN_URL: `${oauthBase}/token`,
+    GOOGLE_USERINFO_URL: `${oauthBase}/userinfo`,
+    GOOGLE_CALLBACK_URL: `${baseUrl}/api/v1/auth/google/callback`,
+    PUBLIC_URL: '',
+    SIGNUP_RATE_LIMIT_MAX: '1000',
+    LOG_LEVEL: process.env.E2E_LOG_LEVEL ?? 'warn',
+    // Everything the servers need is set here; a developer's .env must not change the test setup.
+    ENV_FILE: 'none',
+  });
+
+  for (const script of ['server/cli/migrate.ts', 'server/cli/seed.ts']) {
+    const run = spawnSync(process.execPath, ['--import', 'tsx', script], { cwd: ROOT, env, encoding: 'utf8' });
+    if (run.status !== 0) throw new Error(`${script} failed for ${dbName}:\n${run.stdout}\n${run.stderr}`);
+  }
+
+  const log = createWriteStream(join(resultsDir, 'e2e-server.log'), { flags: 'w' });
+  const children: ChildProcess[] = [];
+  const start = (script: string) => {
+    const child = spawn(process.execPath, ['--import', 'tsx', script], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    child.stdout?.pipe(log, { end: false });
+    child.stderr?.pipe(log, { end: false });
+    children.push(child);
+    return child;
+  };
+  const teardown = async () => {
+    await Promise.all(children.map(stop));
+    log.end();
+  };
+
+  try {
+    const fakes = start('server/fakes/run.ts');
+    await waitForHealth(`${oauthBase}/health`, fakes, 30);
+    const app = start('server/index.ts');
+    await waitForHealth(`${baseUrl}/api/v1/health`, app, 60);
+  } catch (err) {
+    await teardown();
+    throw err;
+  }
+
+  process.env.E2E_BASE_URL = baseUrl;
+  writeFileSync(join(resultsDir, 'e2e-base-url.txt'), `${baseUrl}\n`);
+  project.provide('baseUrl', baseUrl);
+  return teardown;
+}

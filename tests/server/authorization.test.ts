@@ -1,0 +1,190 @@
+/**
+ * Role and cross-club denials for every foundation route: each route × {admin, coach, athlete,
+ * another club's admin, anonymous} with the expected status. A completeness check makes sure a new
+ * route of these routers cannot be added without a row here.
+ */
+import type { Router } from 'express';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { athletesRouter } from '../../server/routes/athletes';
+import { clubsRouter } from '../../server/routes/clubs';
+import { membersRouter } from '../../server/routes/members';
+import { createClubFixture, testApp, type ApiClient, type ClubFixture } from '../support/app';
+
+type Who = 'admin' | 'coach' | 'athlete' | 'outsider' | 'anonymous';
+type Method = 'get' | 'post' | 'patch';
+
+interface Case {
+  method: Method;
+  /** Express route pattern, matched against the routers' own table. */
+  route: string;
+  /** The concrete path for a fixture. */
+  path: (f: ClubFixture) => string;
+  body?: (f: ClubFixture) => unknown;
+  expect: Record<Who, number>;
+}
+
+const club = (f: ClubFixture) => `/api/v1/clubs/${f.clubId}`;
+
+const CASES: Case[] = [
+  {
+    method: 'get',
+    route: '/clubs/:clubId/overview',
+    path: (f) => `${club(f)}/overview`,
+    expect: { admin: 200, coach: 200, athlete: 200, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId',
+    path: club,
+    expect: { admin: 200, coach: 200, athlete: 200, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'patch',
+    route: '/clubs/:clubId',
+    path: club,
+    body: () => ({ units: 'imperial' }),
+    expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/members',
+    path: (f) => `${club(f)}/members`,
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'patch',
+    route: '/clubs/:clubId/members/:memberId',
+    path: (f) => `${club(f)}/members/${f.members.coach.membershipId}`,
+    body: () => ({ role: 'coach' }),
+    expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/athletes',
+    path: (f) => `${club(f)}/athletes`,
+    expect: { admin: 200, coach: 200, athlete: 200, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/athletes/:athleteId',
+    path: (f) => `${club(f)}/athletes/${f.otherAthleteProfileId}`,
+    expect: { admin: 200, coach: 200, athlete: 404, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/athletes',
+    path: (f) => `${club(f)}/athletes`,
+    body: () => ({ displayName: 'Matrix Athlete' }),
+    expect: { admin: 201, coach: 201, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'patch',
+    route: '/clubs/:clubId/athletes/:athleteId',
+    path: (f) => `${club(f)}/athletes/${f.otherAthleteProfileId}`,
+    body: () => ({ position: 'place kicker' }),
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+];
+
+/** Routes as `method path` from an Express 5 router's own table. */
+function routesOf(router: Router): string[] {
+  const stack = (router as unknown as { stack: { route?: { path: string; methods: Record<string, boolean> } }[] }).stack;
+  return stack
+    .filter((layer) => layer.route)
+    .flatMap((layer) => Object.keys(layer.route!.methods).map((m) => `${m} ${layer.route!.path}`));
+}
+
+describe('authorization matrix', () => {
+  let f: ClubFixture;
+  beforeAll(async () => {
+    f = await createClubFixture(testApp());
+  });
+
+  it('covers every route of the club, member and athlete routers when a route is added', () => {
+    const declared = [clubsRouter, membersRouter, athletesRouter].flatMap(routesOf).sort();
+    const tested = [...new Set(CASES.map((c) => `${c.method} ${c.route}`))].sort();
+    expect(tested).toEqual(declared);
+  });
+
+  const whos: Who[] = ['admin', 'coach', 'athlete', 'outsider', 'anonymous'];
+  for (const c of CASES) {
+    for (const who of whos) {
+      it(`answers ${c.expect[who]} to ${c.method.toUpperCase()} ${c.route} when the caller is ${who}`, async () => {
+        const client: ApiClient = f[who];
+        const res = await client.request(c.method, c.path(f), c.body?.(f));
+        expect(res.status, JSON.stringify(res.body)).toBe(c.expect[who]);
+        if (res.status >= 400) {
+          const codes: Record<number, string> = { 401: 'UNAUTHENTICATED', 403: 'FORBIDDEN', 404: 'NOT_FOUND' };
+          expect(res.body.error.code).toBe(codes[res.status]);
+        }
+      });
+    }
+  }
+});
+
+describe('authorization: athletes reach only their own records', () => {
+  let f: ClubFixture;
+  beforeAll(async () => {
+    f = await createClubFixture(testApp());
+  });
+
+  it('shows an athlete only their own profile in the athlete list', async () => {
+    const res = await f.athlete.get(`/api/v1/clubs/${f.clubId}/athletes`);
+    expect(res.status).toBe(200);
+    expect(res.body.data.map((a: { id: number }) => a.id)).toEqual([f.members.athlete.athleteProfileId]);
+    const all = await f.coach.get(`/api/v1/clubs/${f.clubId}/athletes`);
+    expect(all.body.data.map((a: { id: number }) => a.id).sort()).toEqual(
+      [f.members.athlete.athleteProfileId, f.otherAthleteProfileId].sort(),
+    );
+  });
+
+  it('lets an athlete read their own profile when they ask by id', async () => {
+    const res = await f.athlete.get(`/api/v1/clubs/${f.clubId}/athletes/${f.members.athlete.athleteProfileId}`);
+    expect(res.status).toBe(200);
+    expect(res.body.data.displayName).toBe('Fixture Athlete');
+  });
+
+  it('counts only the athlete’s own profile on their Overview', async () => {
+    const mine = await f.athlete.get(`/api/v1/clubs/${f.clubId}/overview`);
+    expect(mine.body.data.counts.athleteProfiles).toBe(1);
+    expect(mine.body.data.role).toBe('athlete');
+    const coach = await f.coach.get(`/api/v1/clubs/${f.clubId}/overview`);
+    expect(coach.body.data.counts.athleteProfiles).toBe(2);
+  });
+});
+
+describe('authorization: another club’s ids', () => {
+  let f: ClubFixture;
+  let g: ClubFixture;
+  beforeAll(async () => {
+    const app = testApp();
+    f = await createClubFixture(app);
+    g = await createClubFixture(app);
+  });
+
+  it('answers 404 when an admin asks for another club’s athlete through their own club', async () => {
+    const res = await f.admin.get(`/api/v1/clubs/${f.clubId}/athletes/${g.otherAthleteProfileId}`);
+    expect(res.status).toBe(404);
+    const patch = await f.admin.patch(`/api/v1/clubs/${f.clubId}/athletes/${g.otherAthleteProfileId}`, { position: 'x' });
+    expect(patch.status).toBe(404);
+  });
+
+  it('answers 404 when an admin changes the role of another club’s member through their own club', async () => {
+    const res = await f.admin.patch(`/api/v1/clubs/${f.clubId}/members/${g.members.coach.membershipId}`, { role: 'admin' });
+    expect(res.status).toBe(404);
+  });
+
+  it('answers 404 alike for a club that does not exist and one that is not yours', async () => {
+    const missing = await f.admin.get('/api/v1/clubs/999999999/overview');
+    const foreign = await f.admin.get(`/api/v1/clubs/${g.clubId}/overview`);
+    expect(missing.status).toBe(404);
+    expect(foreign.status).toBe(404);
+    expect(foreign.body).toEqual(missing.body);
+  });
+
+  it('answers 404 when the club id is not a number', async () => {
+    const res = await f.admin.get('/api/v1/clubs/abc/overview');
+    expect(res.status).toBe(404);
+    expect(res.body.error.code).toBe('NOT_FOUND');
+  });
+});
