@@ -1,0 +1,74 @@
+import type { DataResponse, ListResponse } from '@shared/types/api';
+import type { Job } from '@shared/schemas/clip';
+import type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightStatus } from '@shared/schemas/flight';
+import type { FollowBody, TrackPoint, TrackPointInput } from '@shared/schemas/track';
+import { apiUrl, http, type RequestOptions } from './http';
+
+export type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightStatus, TrackPoint, TrackPointInput };
+
+const clubBase = (clubId: number) => `/clubs/${clubId}`;
+const flightPath = (clubId: number, flightId: number) => `${clubBase(clubId)}/flights/${flightId}`;
+
+export async function listClipFlights(clubId: number, clipId: number, options?: RequestOptions): Promise<ListResponse<Flight>> {
+  return http.get<ListResponse<Flight>>(`${clubBase(clubId)}/clips/${clipId}/flights`, options);
+}
+
+export async function listFlights(
+  clubId: number,
+  filters: { sessionId?: number; clipId?: number; athleteId?: number; status?: FlightStatus } = {},
+  options: RequestOptions = {},
+): Promise<ListResponse<Flight>> {
+  return http.get<ListResponse<Flight>>(`${clubBase(clubId)}/flights`, { ...options, query: { ...filters } });
+}
+
+export async function fetchFlight(clubId: number, flightId: number, options?: RequestOptions): Promise<FlightDetail> {
+  return (await http.get<DataResponse<FlightDetail>>(flightPath(clubId, flightId), options)).data;
+}
+
+export async function createFlight(clubId: number, clipId: number, body: FlightInput, options?: RequestOptions): Promise<Flight> {
+  return (await http.post<DataResponse<Flight>>(`${clubBase(clubId)}/clips/${clipId}/flights`, body, options)).data;
+}
+
+export async function updateFlight(clubId: number, flightId: number, body: FlightPatch, options?: RequestOptions): Promise<Flight> {
+  return (await http.patch<DataResponse<Flight>>(flightPath(clubId, flightId), body, options)).data;
+}
+
+export async function deleteFlight(clubId: number, flightId: number, options?: RequestOptions): Promise<void> {
+  await http.delete(flightPath(clubId, flightId), options);
+}
+
+export async function fetchPoints(clubId: number, flightId: number, options?: RequestOptions): Promise<TrackPoint[]> {
+  return (await http.get<DataResponse<TrackPoint[]>>(`${flightPath(clubId, flightId)}/points`, options)).data;
+}
+
+/** Replaces the flight's points in one go ([] clears them). */
+export async function savePoints(clubId: number, flightId: number, points: TrackPointInput[], options?: RequestOptions): Promise<TrackPoint[]> {
+  return (await http.put<DataResponse<TrackPoint[]>>(`${flightPath(clubId, flightId)}/points`, { points }, options)).data;
+}
+
+/** Starts auto-follow from a marked point; answers the `flight.follow` job to watch. */
+export async function startFollow(clubId: number, flightId: number, body: FollowBody, options?: RequestOptions): Promise<Job> {
+  return (await http.post<DataResponse<Job>>(`${flightPath(clubId, flightId)}/follow`, body, options)).data;
+}
+
+/** Replaces the points by those of a CSV (pixel or metre columns); a bad cell answers 400 CSV_INVALID naming line and column. */
+export async function importTrackCsv(clubId: number, flightId: number, csv: string, options?: RequestOptions): Promise<TrackPoint[]> {
+  return (await http.post<DataResponse<TrackPoint[]>>(`${flightPath(clubId, flightId)}/track/import`, { csv }, options)).data;
+}
+
+export function trackCsvUrl(clubId: number, flightId: number): string {
+  return apiUrl(`${flightPath(clubId, flightId)}/track.csv`);
+}
+
+/** Queues a fit of the calibrated track (409 CALIBRATION_REQUIRED without a calibration). */
+export async function startFit(clubId: number, flightId: number, model?: string, options?: RequestOptions): Promise<Job> {
+  return (await http.post<DataResponse<Job>>(`${flightPath(clubId, flightId)}/fit`, model ? { model } : {}, options)).data;
+}
+
+export async function listFits(clubId: number, flightId: number, options?: RequestOptions): Promise<Fit[]> {
+  return (await http.get<DataResponse<Fit[]>>(`${flightPath(clubId, flightId)}/fits`, options)).data;
+}
+
+export async function listFlightActions(clubId: number, options?: RequestOptions): Promise<FlightAction[]> {
+  return (await http.get<DataResponse<FlightAction[]>>(`${clubBase(clubId)}/flight-actions`, options)).data;
+}

@@ -1,0 +1,38 @@
+import type { DataResponse, ListResponse } from '@shared/types/api';
+import type { Session, SessionInput, SessionPatch } from '@shared/schemas/session';
+import { http, type RequestOptions } from './http';
+
+export type { Session, SessionInput, SessionPatch };
+
+export interface SessionFilters {
+  /** First date, inclusive (YYYY-MM-DD). */
+  from?: string | null;
+  /** Last date, inclusive (YYYY-MM-DD). */
+  to?: string | null;
+  /** Part of the venue's name. */
+  venue?: string | null;
+}
+
+const base = (clubId: number) => `/clubs/${clubId}/sessions`;
+
+export async function listSessions(clubId: number, filters: SessionFilters = {}, options: RequestOptions = {}): Promise<ListResponse<Session>> {
+  const query = { from: filters.from || undefined, to: filters.to || undefined, venue: filters.venue?.trim() || undefined };
+  return http.get<ListResponse<Session>>(base(clubId), { ...options, query });
+}
+
+export async function fetchSession(clubId: number, sessionId: number, options?: RequestOptions): Promise<Session> {
+  return (await http.get<DataResponse<Session>>(`${base(clubId)}/${sessionId}`, options)).data;
+}
+
+export async function createSession(clubId: number, body: SessionInput, options?: RequestOptions): Promise<Session> {
+  return (await http.post<DataResponse<Session>>(base(clubId), body, options)).data;
+}
+
+export async function updateSession(clubId: number, sessionId: number, body: SessionPatch, options?: RequestOptions): Promise<Session> {
+  return (await http.patch<DataResponse<Session>>(`${base(clubId)}/${sessionId}`, body, options)).data;
+}
+
+/** Deletes a session; `confirm` must be true when it holds flights (the server refuses otherwise with 409 CONFLICT). */
+export async function deleteSession(clubId: number, sessionId: number, confirm: boolean, options: RequestOptions = {}): Promise<void> {
+  await http.delete(`${base(clubId)}/${sessionId}`, { ...options, query: confirm ? { confirm: 'true' } : undefined });
+}

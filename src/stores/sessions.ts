@@ -1,0 +1,85 @@
+import { defineStore } from 'pinia';
+import { ref, shallowRef, watch } from 'vue';
+import { fetchClub } from '@/api/clubs';
+import { deleteSession, listSessions, type Session, type SessionFilters } from '@/api/sessions';
+import { loadErrorText } from '@/composables/use-loader';
+import type { UnitSystem } from '@/utils/units';
+import { useClubStore } from './club';
+
+/**
+ * The Sessions list with its filters (kept while the coach opens a session and comes back), and the club's
+ * display units, which every screen of sessions, clips and tracing shows quantities in.
+ */
+export const useSessionsStore = defineStore('sessions', () => {
+  const club = useClubStore();
+  const items = shallowRef<Session[]>([]);
+  const total = ref(0);
+  const loading = ref(false);
+  const error = ref<string | null>(null);
+  const filters = ref<SessionFilters>({ from: null, to: null, venue: null });
+  const units = ref<UnitSystem>('metric');
+  let unitsClubId: number | null = null;
+  let generation = 0;
+
+  async function load(): Promise<void> {
+    const clubId = club.clubId;
+    if (clubId === null) return;
+    const mine = ++generation;
+    loading.value = true;
+    error.value = null;
+    try {
+      const answer = await listSessions(clubId, filters.value);
+      if (mine !== generation) return;
+      items.value = answer.data;
+      total.value = answer.meta.total;
+    } catch (cause) {
+      if (mine === generation) error.value = loadErrorText(cause);
+    } finally {
+      if (mine === generation) loading.value = false;
+    }
+  }
+
+  /** Loads the club's units preference once per club; metric until it is known or when it cannot be read. */
+  async function ensureUnits(): Promise<UnitSystem> {
+    const clubId = club.clubId;
+    if (clubId === null || unitsClubId === clubId) return units.value;
+    try {
+      const profile = await fetchClub(clubId);
+      units.value = profile.units === 'imperial' ? 'imperial' : 'metric';
+      unitsClubId = clubId;
+    } catch {
+      // Units are a display preference: a failed read keeps metric rather than blocking the screen.
+    }
+    return units.value;
+  }
+
+  /** Replaces one session in the list after an edit, or adds a new one. */
+  function upsert(session: Session): void {
+    const isNew = !items.value.some((s) => s.id === session.id);
+    const rest = items.value.filter((s) => s.id !== session.id);
+    // Same order as the server: newest date first.
+    items.value = [session, ...rest].sort((a, b) => (a.date === b.date ? b.id - a.id : b.date.localeCompare(a.date)));
+    if (isNew) total.value += 1;
+  }
+
+  async function remove(session: Session, confirm: boolean): Promise<void> {
+    const clubId = club.clubId;
+    if (clubId === null) return;
+    await deleteSession(clubId, session.id, confirm);
+    items.value = items.value.filter((s) => s.id !== session.id);
+    total.value = Math.max(0, total.value - 1);
+  }
+
+  // Another club in view: nothing of the previous club may stay.
+  watch(
+    () => club.clubId,
+    () => {
+      items.value = [];
+      total.value = 0;
+      unitsClubId = null;
+      units.value = 'metric';
+    },
+  );
+
+  return { items, total, loading, error, filters, units, load, ensureUnits, upsert, remove };
+});
