@@ -33,10 +33,14 @@ export function airConditions(session: Session): AirConditions | null {
   return Object.keys(c).length > 0 ? c : null;
 }
 
-/** Wind along the flight (m/s, + = tailwind) from speed and the direction it blows towards (0° = along the flight). */
+/**
+ * Wind along the flight (m/s, + = tailwind) from speed and the direction it blows towards (0° = along the flight).
+ * Note: a speed without a direction says nothing about the along-flight part, so it counts as still air
+ * rather than as a full tailwind (which would bias the fitted drag coefficient).
+ */
 export function windAlongFlight(session: Session): number {
-  if (session.windSpeedMps === null) return 0;
-  return session.windSpeedMps * Math.cos(((session.windDirectionDeg ?? 0) * Math.PI) / 180);
+  if (session.windSpeedMps === null || session.windDirectionDeg === null) return 0;
+  return session.windSpeedMps * Math.cos((session.windDirectionDeg * Math.PI) / 180);
 }
 
 function pointsSignature(points: { id: number }[]): string {

@@ -1,0 +1,824 @@
+/**
+ * Fit the equations of motion to a traced flight, and derive what the coach reads.
+ *
+ * Method: nonlinear least squares (Levenberg–Marquardt, {@link levenbergMarquardt}) over the launch
+ * point, launch velocity and the air's coefficients (C_d; C_L; or β), the model integrated with its
+ * variational equations so that each iteration costs one integration ({@link flightRhs}); a robust
+ * soft-L1 loss on each point's distance from the model so that a few bad clicks do not drag the fit;
+ * standard errors from the covariance s²(JᵀWJ)⁻¹ (Seber & Wild, *Nonlinear Regression* (1989)
+ * §2.1, §5.2); a Gaussian prior on C_d from the ball's catalogue range when the track cannot
+ * determine it; model choice between drag and drag-lift by the Bayesian information criterion
+ * (Schwarz, Ann. Stat. 6 (1978) 461; "positive evidence" ΔBIC > 2 after Kass & Raftery, JASA 90
+ * (1995) 773); and a scale check by a fit that lets gravity float.
+ */
+import { reynoldsNumber, dragRegime, standardAir, type Air, type DragRegime } from './air';
+import { resolveBall, type BallProps } from './balls';
+import { STANDARD_GRAVITY } from './constants';
+import { PhysicsError, isPhysicsError, type FlightWarning } from './errors';
+import {
+  acceleration, dragFactor, flightRhs, flyToGround, initialState, summarize, summaryOf, samplePath,
+  type FlightAero, type FlightModel, type FlightSummary, type Launch, type MotionCoefficients, type SensitivityParam,
+} from './flight';
+import { integrate } from './integrator';
+import { spdInverse, polyFit } from './linalg';
+import { gaussNewtonStep, levenbergMarquardt, type LmOptions, type LmProblem, type LmResult, type LmStopReason, type RobustLoss } from './lm';
+import { checkTrack, type Track } from './track';
+import { withDefaults } from './options';
+
+export type ModelChoice = 'auto' | FlightModel;
+
+/** Options of {@link fitFlight}; defaults in {@link FIT_DEFAULTS}. */
+export interface FitOptions {
+  /** `auto` (default): drag, or drag-lift where the information criterion says lift is warranted. */
+  model?: ModelChoice;
+  /** The ball (catalogue id or mass/diameter); required by every model but `vacuum` and `linear`. */
+  ball?: BallProps | string;
+  /** The air; default ISO standard sea-level air, with an `AIR_ASSUMED` warning. */
+  air?: Air;
+  /** Wind along the flight (m/s), positive = tailwind, −60…60. */
+  windSpeed?: number;
+  /** Gravity (m/s²); default 9.80665. */
+  gravity?: number;
+  /** Robust loss on each point's distance (default `soft-l1`); `linear` is plain least squares. */
+  loss?: RobustLoss;
+  /** Cross-check the calibration with a gravity-free fit (default true). */
+  scaleCheck?: boolean;
+  /** Prior on C_d from the ball's range: `auto` (when the track cannot determine C_d), `always`, or `off`. */
+  cdPrior?: 'auto' | 'always' | 'off';
+  /** Accept a track that never rises (downward serve, spike): apex becomes the release. Default false. */
+  allowDescending?: boolean;
+  /** Tolerance of the integration inside the fit (default 1e-9: m and m/s, relative). */
+  rtol?: number;
+  /** Iteration limit per least-squares run (default 100). */
+  maxIterations?: number;
+}
+
+export const FIT_DEFAULTS = {
+  model: 'auto' as ModelChoice,
+  windSpeed: 0,
+  gravity: STANDARD_GRAVITY,
+  loss: 'soft-l1' as RobustLoss,
+  scaleCheck: true,
+  cdPrior: 'auto' as 'auto' | 'always' | 'off',
+  allowDescending: false,
+  rtol: 1e-9,
+  maxIterations: 100,
+} as const;
+
+/**
+ * Smallest position noise the fit assumes (m): sub-millimetre tracing is not credible from video,
+ * and a floor keeps the information criterion and the robust scale sane on synthetic, noise-free tracks.
+ */
+export const NOISE_FLOOR_M = 1e-4;
+/** The soft-L1 loss scale in units of the robust noise estimate: inliers keep weights ≳ 0.8. */
+const LOSS_SCALE_SIGMAS = 2.5;
+/** A point farther than this many noise units from the fit is reported as an outlier. */
+const OUTLIER_SIGMAS = 4;
+/** A coarse gravity estimate outside ×1/12…×12 of standard is a unit or timing error, whatever the ball. */
+const COARSE_SCALE_BAND = 12;
+/** Generic C_d range for a ball without one (smooth to rough spheres, common practice). */
+const GENERIC_CD_RANGE = { min: 0.1, max: 0.6 };
+
+export interface ScaleCheck {
+  /** Fitted gravity / assumed gravity: 1.00 means the calibration agrees with gravity. */
+  factor: number;
+  /** One standard error of `factor`; null when the track cannot determine gravity. */
+  error: number | null;
+  status: 'agrees' | 'disagrees' | 'inconclusive';
+}
+
+/** The result of a fit. Lengths m, times s from the release, speeds m/s, angles degrees; errors one standard error. */
+export interface FitResult {
+  model: FlightModel;
+  converged: boolean;
+  stopReason: LmStopReason;
+  /** Iterations over all least-squares runs of this fit. */
+  iterations: number;
+  evaluations: number;
+  launch: Launch & { x: number; vx: number; vy: number; speedError: number | null; angleDegError: number | null; heightError: number | null };
+  cd: number | null;
+  cdError: number | null;
+  cl: number | null;
+  clError: number | null;
+  /** β = b/m (1/s), linear model only. */
+  dragRate: number | null;
+  dragRateError: number | null;
+  /** The fitted flight from the release to the ground (extrapolated past the track's end). */
+  flight: FlightSummary;
+  errors: { carry: number | null; apexHeight: number | null; apexTime: number | null; flightTime: number | null; landingSpeed: number | null; standardCarry: number | null };
+  /** Air-relative speed at which drag balances weight (m/s). */
+  terminalSpeed: number | null;
+  /** Drag force / weight at launch. */
+  dragToWeight: number | null;
+  /** Reynolds number at launch (air-relative speed). */
+  reynolds: number | null;
+  regime: DragRegime | null;
+  nearDragCrisis: boolean | null;
+  /** The same launch with no air. */
+  vacuum: { carry: number; apexHeight: number; flightTime: number };
+  /** The same launch in still ISO standard sea-level air (m). */
+  standardCarry: number;
+  /** Root-mean-square distance of the points from the fitted flight (m). */
+  rms: number;
+  /** Robust estimate of the position noise per coordinate (m). */
+  noise: number;
+  points: number;
+  /** 1-based numbers of points that the robust loss set aside. */
+  outliers: number[];
+  /** Time of the last sample after the release (s). */
+  trackEnd: number;
+  extrapolated: boolean;
+  scaleCheck: ScaleCheck | null;
+  /** BIC of both models (lower is better); `drag` is null when the lift term was decisive (Wald z² − ln m > 27) and the drag fit was skipped. */
+  modelSelection: { criterion: 'BIC'; drag: number | null; dragLift: number; chosen: FlightModel } | null;
+  cdPrior: { mean: number; sd: number; used: boolean; source: string } | null;
+  warnings: FlightWarning[];
+  /** Everything the planner needs to fly this launch again. */
+  setup: { launch: Launch; aero: FlightAero; ball: BallProps | null; air: Air; windSpeed: number; gravity: number };
+  /** Time of the first sample in the input clock (s), and +1/−1 when the flight went towards −x and was mirrored. */
+  track: { t0: number; direction: 1 | -1 };
+  covariance: { params: string[]; matrix: number[][] } | null;
+}
+
+interface Prepared {
+  tau: Float64Array;
+  xs: Float64Array;
+  ys: Float64Array;
+  n: number;
+  t0: number;
+  direction: 1 | -1;
+}
+
+interface Config {
+  model: FlightModel;
+  freeG: boolean;
+  prior: { mean: number; sd: number; noise: number } | null;
+}
+
+interface Run {
+  config: Config;
+  lm: LmResult;
+  names: string[];
+}
+
+function paramNames(cfg: Config): string[] {
+  const names = ['x0', 'y0', 'vx0', 'vy0'];
+  if (cfg.model === 'linear') names.push('beta');
+  if (cfg.model === 'drag' || cfg.model === 'drag-lift') names.push('cd');
+  if (cfg.model === 'drag-lift') names.push('cl');
+  if (cfg.freeG) names.push('g');
+  return names;
+}
+
+function sensList(names: string[]): SensitivityParam[] {
+  return names.slice(2) as SensitivityParam[];
+}
+
+function prepare(track: Track): Prepared {
+  const { t, x, y } = checkTrack(track);
+  const n = t.length;
+  const t0 = t[0];
+  const tau = new Float64Array(n);
+  for (let i = 0; i < n; i++) tau[i] = t[i] - t0;
+  const direction: 1 | -1 = x[n - 1] - x[0] < 0 ? -1 : 1;
+  const xs = new Float64Array(n);
+  for (let i = 0; i < n; i++) xs[i] = direction * x[i];
+  return { tau, xs, ys: y, n, t0, direction };
+}
+
+function median(values: ArrayLike<number>): number {
+  const s = Float64Array.from(values).sort();
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
+}
+
+/**
+ * Robust noise per coordinate from point distances d: for isotropic Gaussian noise σ, d is
+ * Rayleigh-distributed with median σ√(2 ln 2) ≈ 1.1774σ.
+ */
+function robustNoise(distances: ArrayLike<number>): number {
+  return median(distances) / Math.sqrt(2 * Math.LN2);
+}
+
+interface InitialGuess { x0: number; y0: number; vx0: number; vy0: number; ax0: number; noise: number; gApparent: number }
+
+/** Launch estimate from robust (iteratively reweighted, Cauchy weights) cubic fits of x(t) and y(t). */
+function initialGuess(prep: Prepared): InitialGuess {
+  const { tau, xs, ys, n } = prep;
+  const degree = Math.min(3, n - 2);
+  const w = new Float64Array(n).fill(1);
+  const d = new Float64Array(n);
+  let cx: Float64Array | null = null, cy: Float64Array | null = null;
+  let noise = 0;
+  for (let it = 0; it < 4; it++) {
+    cx = polyFit(tau, xs, w, degree);
+    cy = polyFit(tau, ys, w, degree);
+    if (!cx || !cy) throw new PhysicsError('FIT_FAILED', 'The samples are degenerate (all at one time or place?): check the track.');
+    for (let i = 0; i < n; i++) {
+      let px = 0, py = 0;
+      for (let k = degree; k >= 0; k--) { px = px * tau[i] + cx[k]; py = py * tau[i] + cy[k]; }
+      d[i] = Math.hypot(xs[i] - px, ys[i] - py);
+    }
+    noise = Math.max(robustNoise(d), NOISE_FLOOR_M);
+    const c = 2.5 * noise;
+    for (let i = 0; i < n; i++) w[i] = 1 / (1 + (d[i] / c) ** 2);
+  }
+  const T = tau[n - 1];
+  const vyAt = (s: number) => { let v = 0; for (let k = degree; k >= 1; k--) v = v * s + k * cy![k]; return v; };
+  return {
+    x0: cx![0], y0: cy![0], vx0: cx![1], vy0: cy![1], ax0: degree >= 2 ? 2 * cx![2] : 0, noise,
+    gApparent: -(vyAt(T) - vyAt(0)) / T,
+  };
+}
+
+const UNIT_HINTS: { factor: number; hint: string }[] = [
+  { factor: 1000, hint: 'the positions look like millimetres: give them in metres' },
+  { factor: 100, hint: 'the positions look like centimetres: give them in metres' },
+  { factor: 39.37, hint: 'the positions look like inches: give them in metres' },
+  { factor: 3.281, hint: 'the positions look like feet: give them in metres' },
+  { factor: 1 / 4, hint: 'the times look stretched ×2: enter the capture frame rate of the slow-motion clip, not its playback rate' },
+  { factor: 1 / 16, hint: 'the times look stretched ×4: enter the capture frame rate of the slow-motion clip, not its playback rate' },
+  { factor: 1 / 64, hint: 'the times look stretched ×8: enter the capture frame rate of the slow-motion clip, not its playback rate' },
+  { factor: 4, hint: 'the times look compressed ×2: check the frame rate' },
+  { factor: 0.001, hint: 'the positions look like kilometres: give them in metres' },
+];
+
+function scaleHint(factor: number): string {
+  for (const u of UNIT_HINTS) if (factor > u.factor / 1.15 && factor < u.factor * 1.15) return u.hint;
+  return 'check the calibration (the two reference points and their distance) and the frame rate';
+}
+
+function scaleError(factor: number, how: string, modelHint = ''): PhysicsError {
+  if (factor > 0 && factor < 0.01) {
+    return new PhysicsError('SCALE_SUSPECT', `The track hardly falls at all (${fmtNum(factor * 100, 2)} % of gravity, ${how}): check that y points up and the level line of the calibration, and that the points are one flight.`, { scaleFactor: factor });
+  }
+  return new PhysicsError('SCALE_SUSPECT',
+    `The flight falls ${factor >= 1 ? `${fmtNum(factor)} times faster` : `${fmtNum(1 / factor)} times slower`} than gravity allows (${how}): ${scaleHint(factor)}${modelHint}.`,
+    { scaleFactor: factor });
+}
+
+function fmtNum(v: number, digits = 3): string {
+  return Number(v.toPrecision(digits)).toString();
+}
+
+function makeProblem(prep: Prepared, cfg: Config, base: MotionCoefficients, kappa: number, rtol: number): LmProblem {
+  const names = paramNames(cfg);
+  const np = names.length;
+  const { tau, xs, ys, n } = prep;
+  const nRes = 2 * n + (cfg.prior ? 1 : 0);
+  const sens = sensList(names);
+  const dim = 4 + 4 * sens.length;
+  const out = new Float64Array(n * dim);
+  const iDrag = names.indexOf(cfg.model === 'linear' ? 'beta' : 'cd');
+  const iCl = names.indexOf('cl');
+  const iG = names.indexOf('g');
+  const tEnd = tau[n - 1];
+  return {
+    nParams: np,
+    nResiduals: nRes,
+    robustResiduals: 2 * n,
+    groupSize: 2,
+    evaluate(p, r, J) {
+      const g = iG >= 0 ? p[iG] : base.g;
+      if (cfg.model === 'vacuum') {
+        for (let k = 0; k < n; k++) {
+          const t = tau[k];
+          r[2 * k] = p[0] + p[2] * t - xs[k];
+          r[2 * k + 1] = p[1] + p[3] * t - 0.5 * g * t * t - ys[k];
+          if (J) {
+            const rx = 2 * k * np, ry = rx + np;
+            for (let a = 0; a < np; a++) { J[rx + a] = 0; J[ry + a] = 0; }
+            J[rx] = 1; J[rx + 2] = t;
+            J[ry + 1] = 1; J[ry + 3] = t;
+            if (iG >= 0) J[ry + iG] = -0.5 * t * t;
+          }
+        }
+        return true;
+      }
+      const drag = iDrag >= 0 ? p[iDrag] : 0;
+      const cl = iCl >= 0 ? p[iCl] : 0;
+      // Refuse absurd trial points before integrating: they can only fail, slowly.
+      if (!(Math.abs(drag) < 20 && Math.abs(cl) < 20 && Math.hypot(p[2], p[3]) < 1000 && g > 0)) return false;
+      const c: MotionCoefficients = {
+        model: cfg.model,
+        k: cfg.model === 'linear' ? 0 : kappa * drag,
+        kl: kappa * cl,
+        beta: cfg.model === 'linear' ? drag : 0,
+        g,
+        wind: base.wind,
+      };
+      try {
+        integrate(flightRhs(c, kappa, sens), 0, initialState(p[0], p[1], p[2], p[3], sens), {
+          tEnd, rtol, atol: rtol, errorDim: 4, outputTimes: tau, output: out, maxSteps: 5000,
+        });
+      } catch (e) {
+        if (isPhysicsError(e)) return false;
+        throw e;
+      }
+      for (let k = 0; k < n; k++) {
+        const o = k * dim;
+        r[2 * k] = out[o] - xs[k];
+        r[2 * k + 1] = out[o + 1] - ys[k];
+        if (J) {
+          const rx = 2 * k * np, ry = rx + np;
+          J[rx] = 1; J[rx + 1] = 0;
+          J[ry] = 0; J[ry + 1] = 1;
+          for (let j = 0; j < sens.length; j++) {
+            J[rx + 2 + j] = out[o + 4 + 4 * j];
+            J[ry + 2 + j] = out[o + 5 + 4 * j];
+          }
+        }
+      }
+      if (cfg.prior) {
+        const { mean, sd, noise } = cfg.prior;
+        r[2 * n] = (noise * (p[iDrag] - mean)) / sd;
+        if (J) {
+          const row = 2 * n * np;
+          for (let a = 0; a < np; a++) J[row + a] = 0;
+          J[row + iDrag] = noise / sd;
+        }
+      }
+      return true;
+    },
+  };
+}
+
+/** Point distances from the model and the robust noise of a run. */
+function runNoise(run: Run, n: number): { d: Float64Array; noise: number } {
+  const d = new Float64Array(n);
+  for (let k = 0; k < n; k++) d[k] = Math.hypot(run.lm.r[2 * k], run.lm.r[2 * k + 1]);
+  return { d, noise: Math.max(robustNoise(d), NOISE_FLOOR_M) };
+}
+
+/**
+ * Covariance s²(JᵀWJ)⁻¹ with s² = Σ wᵢrᵢ² / (Σ wᵢ − p) over the traced points' residuals (the
+ * weighted-least-squares estimate at the IRLS fixed point; Holland & Welsch 1977). Null when
+ * JᵀWJ is singular (a parameter the track cannot determine).
+ */
+function covarianceOf(run: Run, n: number): { cov: Float64Array | null; s2: number } {
+  const np = run.names.length;
+  let num = 0, wsum = 0;
+  for (let k = 0; k < n; k++) {
+    const w = run.lm.weights[k];
+    num += w * (run.lm.r[2 * k] ** 2 + run.lm.r[2 * k + 1] ** 2);
+    wsum += 2 * w;
+  }
+  const dof = wsum - np;
+  const s2 = Math.max(dof > 0 ? num / dof : num, NOISE_FLOOR_M ** 2);
+  const h = Float64Array.from(run.lm.jtwj);
+  if (run.config.prior) {
+    // The prior row entered the fit scaled by the noise estimate of the day; in the covariance it must
+    // carry exactly its own precision 1/sd², whatever s² comes out: replace (noise/sd)² by s²/sd².
+    const i = run.names.indexOf('cd');
+    const { noise, sd } = run.config.prior;
+    h[i * np + i] += (s2 - noise * noise) / (sd * sd);
+  }
+  const inv = spdInverse(h, np);
+  if (!inv) return { cov: null, s2 };
+  for (let i = 0; i < inv.length; i++) inv[i] *= s2;
+  for (let i = 0; i < np; i++) if (!(inv[i * np + i] >= 0) || !Number.isFinite(inv[i * np + i])) return { cov: null, s2 };
+  return { cov: inv, s2 };
+}
+
+function stdErr(cov: Float64Array | null, np: number, i: number): number | null {
+  if (!cov || i < 0) return null;
+  return Math.sqrt(cov[i * np + i]);
+}
+
+/** σ of a derived quantity with gradient `grad` over the parameters: √(gᵀ C g) (delta method). */
+function propagate(cov: Float64Array | null, grad: ArrayLike<number>): number | null {
+  if (!cov) return null;
+  const np = grad.length;
+  let v = 0;
+  for (let a = 0; a < np; a++) for (let b = 0; b < np; b++) v += grad[a] * cov[a * np + b] * grad[b];
+  return v >= 0 && Number.isFinite(v) ? Math.sqrt(v) : null;
+}
+
+/** Bayesian information criterion of a run: m ln(RSS/m) + p ln m, RSS floored at the noise floor. */
+function bic(run: Run, n: number): number {
+  const m = 2 * n;
+  const rss = Math.max(2 * run.lm.cost, m * NOISE_FLOOR_M ** 2);
+  return m * Math.log(rss / m) + run.names.length * Math.log(m);
+}
+
+/**
+ * Fit a flight model to a traced flight.
+ * @param track samples t (s), x (m, along the flight, either direction), y (m, up from the ground); first sample at the release; at least 5.
+ * @param options model, ball, air, wind (m/s), gravity (m/s²), loss, checks; see {@link FitOptions}.
+ * @returns launch speed/angle/height, C_d/C_L with standard errors, the fitted flight to the ground
+ *   and the metrics derived from it, goodness of fit, warnings; see {@link FitResult}.
+ * @throws PhysicsError with a code: bad tracks (`TOO_FEW_POINTS`, `UNSORTED_TIMES`,
+ *   `DUPLICATE_TIMES`, `NON_FINITE`, `LENGTH_MISMATCH`), `NEVER_RISES`, `SCALE_SUSPECT`,
+ *   `MISSING_BALL`, `BAD_OPTION`, `FIT_FAILED`.
+ */
+export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
+  const o = withDefaults(FIT_DEFAULTS, options) as typeof FIT_DEFAULTS & FitOptions;
+  if (!['auto', 'vacuum', 'linear', 'drag', 'drag-lift'].includes(o.model)) {
+    throw new PhysicsError('BAD_OPTION', `Unknown model "${o.model}": use auto, vacuum, linear, drag or drag-lift.`);
+  }
+  if (!['linear', 'soft-l1', 'cauchy', 'huber'].includes(o.loss)) {
+    throw new PhysicsError('BAD_OPTION', `Unknown loss "${o.loss}": use linear, soft-l1, cauchy or huber.`);
+  }
+  if (!(o.rtol >= 1e-14 && o.rtol <= 1e-4)) throw new PhysicsError('BAD_OPTION', `Integration tolerance ${o.rtol} is outside 1e-14…1e-4.`);
+  const warnings: FlightWarning[] = [];
+  const prep = prepare(track);
+  const needsBall = o.model === 'auto' || o.model === 'drag' || o.model === 'drag-lift';
+  if (needsBall && o.ball === undefined) {
+    throw new PhysicsError('MISSING_BALL', 'Fitting drag needs the ball: choose a catalogue ball or give its mass (kg) and diameter (m).');
+  }
+  const ball = o.ball === undefined ? null : resolveBall(o.ball);
+  let air = o.air;
+  if (!air) {
+    air = standardAir();
+    if (o.model !== 'vacuum') {
+      warnings.push({ code: 'AIR_ASSUMED', message: 'No air conditions given: standard sea-level air (1.225 kg/m³) was assumed. Enter the session\'s temperature, pressure or altitude for a fairer drag coefficient.' });
+    }
+  }
+  if (!(air.densityKgM3 > 0) || !(air.viscosityPaS > 0)) throw new PhysicsError('BAD_AIR', 'The air needs a positive density and viscosity.');
+  const kappa = ball ? dragFactor(ball, air) : 0;
+  // Validates wind and gravity with the same messages as the simulator.
+  const { c: base } = ((): { c: MotionCoefficients } => {
+    if (!Number.isFinite(o.windSpeed) || Math.abs(o.windSpeed) > 60) throw new PhysicsError('BAD_OPTION', `Wind ${o.windSpeed} m/s is not a wind speed between −60 and 60 m/s.`);
+    if (!Number.isFinite(o.gravity) || o.gravity <= 0 || o.gravity > 30) throw new PhysicsError('BAD_OPTION', `Gravity ${o.gravity} m/s² is not between 0 and 30 m/s².`);
+    return { c: { model: 'drag', k: 0, kl: 0, beta: 0, g: o.gravity, wind: o.windSpeed } };
+  })();
+
+  const init = initialGuess(prep);
+  const n = prep.n;
+  // Gross scale errors first: a cheap secant estimate of gravity from the smoothed track. Drag can
+  // move it by a factor of a few for light balls on short tracks, hence the wide band.
+  // (A ping-pong ball with heavy topspin can look 8 g heavy on a short track, hence ×12.)
+  const gRatio = init.gApparent / o.gravity;
+  if (gRatio > COARSE_SCALE_BAND || (gRatio > 0 && gRatio < 1 / COARSE_SCALE_BAND)) throw scaleError(gRatio, 'estimated from the smoothed track');
+  const maxRise = Math.max(...Array.from(prep.ys).map((v) => v - prep.ys[0]));
+  if (!o.allowDescending && init.vy0 <= 0 && maxRise <= 3 * init.noise) {
+    throw new PhysicsError('NEVER_RISES', 'The ball never rises: no traced point is above the first one. Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
+  }
+
+  const robust = o.loss !== 'linear';
+  let lossScale = LOSS_SCALE_SIGMAS * init.noise;
+  let iterations = 0, evaluations = 0;
+  const adaptScale = (r: Float64Array): number => {
+    const d = new Float64Array(n);
+    for (let k = 0; k < n; k++) d[k] = Math.hypot(r[2 * k], r[2 * k + 1]);
+    return LOSS_SCALE_SIGMAS * Math.max(robustNoise(d), NOISE_FLOOR_M);
+  };
+  const runFit = (cfg: Config, start: number[], lmOptions: LmOptions = {}, rtol: number = o.rtol): Run => {
+    const problem = makeProblem(prep, cfg, base, kappa, rtol);
+    let lm: LmResult;
+    try {
+      lm = levenbergMarquardt(problem, start, { loss: o.loss, lossScale, maxIterations: o.maxIterations, ...lmOptions });
+    } catch (e) {
+      if (isPhysicsError(e)) throw e;
+      throw new PhysicsError('FIT_FAILED', `The ${cfg.model} model could not be started from this track (the integration failed at the first guess). Check that the samples are one flight, in metres and seconds.`);
+    }
+    iterations += lm.iterations;
+    evaluations += lm.evaluations;
+    if (robust && (lmOptions.loss ?? o.loss) !== 'linear') lossScale = lm.lossScale;
+    return { config: cfg, lm, names: paramNames(cfg) };
+  };
+
+  const launch0 = [init.x0, init.y0, init.vx0, init.vy0];
+  const cdRange = ball?.cdRange ?? GENERIC_CD_RANGE;
+  const cd0 = 0.5 * (cdRange.min + cdRange.max);
+  // Two stages for every model: plain least squares from the smoothing polynomial's launch, loosely
+  // converged, then the robust loss (its scale settled on the way) from there. Note: a robust loss
+  // far from the solution has almost no curvature along the residuals and sends the first steps
+  // wild (measured: v 22 → 84 m/s, C_d → −0.48); and a launch-only first stage is biased when the
+  // ball carries lift (measured: 27 evaluations per drag-lift fit instead of 13).
+  const stageOptions: LmOptions = { loss: 'linear', ftol: 1e-4 };
+  const staged = (cfg: Config, start: number[]): Run => {
+    // The stage only provides a start: a looser integration saves a third of its steps.
+    const stage = runFit(cfg, start, stageOptions, Math.max(o.rtol, 1e-7));
+    return runFit(cfg, Array.from(stage.lm.p), robust ? { adaptScale } : {});
+  };
+  const plain = (model: FlightModel): Config => ({ model, freeG: false, prior: null });
+  let chosen: Run;
+  let selection: FitResult['modelSelection'] = null;
+  if (o.model === 'vacuum') {
+    chosen = staged(plain('vacuum'), launch0);
+  } else if (o.model === 'linear') {
+    const u0 = init.vx0 - o.windSpeed;
+    const beta0 = u0 > 0 && init.ax0 < 0 ? Math.min(-init.ax0 / u0, 10) : 0.1;
+    chosen = staged(plain('linear'), [...launch0, beta0]);
+  } else if (o.model === 'drag') {
+    chosen = staged(plain('drag'), [...launch0, cd0]);
+  } else {
+    const dl = staged(plain('drag-lift'), [...launch0, cd0, 0]);
+    chosen = dl;
+    if (o.model === 'auto') {
+      const bDl = bic(dl, n);
+      // Wald statistic of C_L: for nested models it approximates the deviance gain of the lift term,
+      // so ΔBIC ≈ z² − ln m. Far beyond the threshold the drag fit cannot win and is skipped.
+      const { cov } = covarianceOf(dl, n);
+      const iCl = dl.names.indexOf('cl');
+      const sdCl = stdErr(cov, dl.names.length, iCl);
+      const z = sdCl ? dl.lm.p[iCl] / sdCl : 0;
+      if (dl.lm.converged && z * z > Math.log(2 * n) + 2 + 25) {
+        selection = { criterion: 'BIC', drag: null, dragLift: bDl, chosen: 'drag-lift' };
+      } else {
+        let drag: Run;
+        try {
+          drag = runFit(plain('drag'), Array.from(dl.lm.p).slice(0, 5), { adaptScale: robust ? adaptScale : undefined });
+        } catch (e) {
+          // The drag-lift fit wandered somewhere the drag model cannot start from: start afresh.
+          if (!isPhysicsError(e)) throw e;
+          drag = staged(plain('drag'), [...launch0, cd0]);
+        }
+        const bDrag = bic(drag, n);
+        chosen = dl.lm.converged && bDl < bDrag - 2 ? dl : drag;
+        selection = { criterion: 'BIC', drag: bDrag, dragLift: bDl, chosen: chosen.config.model };
+      }
+    }
+  }
+
+  // Prior on C_d when the track alone determines it less well than the catalogue range does.
+  let priorInfo: FitResult['cdPrior'] = null;
+  if (chosen.config.model === 'drag' || chosen.config.model === 'drag-lift') {
+    const mean = cd0, sd = (cdRange.max - cdRange.min) / 4;
+    const source = ball?.cdRange ? `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}` : `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
+    priorInfo = { mean, sd, used: false, source };
+    if (o.cdPrior !== 'off') {
+      const { cov } = covarianceOf(chosen, n);
+      const iCd = chosen.names.indexOf('cd');
+      const sdData = stdErr(cov, chosen.names.length, iCd);
+      if (o.cdPrior === 'always' || sdData === null || sdData > sd) {
+        const { noise } = runNoise(chosen, n);
+        const withPrior = runFit({ ...chosen.config, prior: { mean, sd, noise } }, Array.from(chosen.lm.p));
+        chosen = withPrior;
+        priorInfo.used = true;
+        warnings.push({
+          code: 'CD_PRIOR_USED',
+          message: `The track ${sdData === null ? 'cannot determine' : `determines C_d only to ±${fmtNum(sdData, 2)}`}: ${source} was used as a prior. Trace more of the flight (ideally to the landing) to measure it.`,
+        });
+      }
+    }
+  }
+
+  const names = chosen.names;
+  const np = names.length;
+  const p = chosen.lm.p;
+  const { cov } = covarianceOf(chosen, n);
+  const idx = (name: string) => names.indexOf(name);
+  const model = chosen.config.model;
+  const [x0, y0, vx0, vy0] = [p[0], p[1], p[2], p[3]];
+  if (!o.allowDescending && vy0 <= 0) {
+    throw new PhysicsError('NEVER_RISES', 'The fitted flight never rises (it leaves the release going down). Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
+  }
+  if (vy0 <= 0) warnings.push({ code: 'NEVER_RISES', message: 'The ball leaves the release going down: the apex is the release point.' });
+  if (y0 < 0 && y0 < -3 * Math.max(init.noise, stdErr(cov, np, 1) ?? 0)) {
+    throw new PhysicsError('FIT_FAILED', `The fitted release is ${fmtNum(-y0, 2)} m below the ground: check that y is measured up from the ground and the level line of the calibration.`);
+  }
+
+  // Scale check: the same model with gravity free, started from the fit. Near a consistent scale
+  // one Gauss–Newton step settles it (g enters almost linearly over a few per cent), and so it does
+  // when gravity is too poorly determined for the check to say anything; a clear, large deviation
+  // gets a full run so that the message quotes the right factor.
+  let scaleCheck: ScaleCheck | null = null;
+  if (o.scaleCheck) {
+    const gCfg: Config = { ...chosen.config, freeG: true };
+    const iG = paramNames(gCfg).indexOf('g');
+    const start = [...Array.from(p), o.gravity];
+    const step = gaussNewtonStep(makeProblem(prep, gCfg, base, kappa, o.rtol), start, { loss: o.loss, lossScale });
+    evaluations++;
+    let factor = NaN, gErr: number | null = null;
+    if (step) {
+      factor = (o.gravity + step.delta[iG]) / o.gravity;
+      const run: Run = { config: gCfg, names: paramNames(gCfg), lm: { ...chosen.lm, r: step.r, weights: step.weights, jtwj: step.jtwj, p: Float64Array.from(start) } };
+      gErr = stdErr(covarianceOf(run, n).cov, run.names.length, iG);
+    }
+    const clearlyOff = step && gErr !== null && Math.abs(factor - 1) > 0.1 && Math.abs(factor - 1) > 4 * (gErr / o.gravity);
+    let gRun: Run | null = null;
+    if (!step || clearlyOff) {
+      try {
+        gRun = runFit(gCfg, start);
+        factor = gRun.lm.p[iG] / o.gravity;
+        gErr = stdErr(covarianceOf(gRun, n).cov, gRun.names.length, iG);
+      } catch (e) {
+        if (!isPhysicsError(e)) throw e;
+        gErr = null;
+      }
+    }
+    const error = gErr === null || !Number.isFinite(factor) ? null : gErr / o.gravity;
+    const dev = Math.abs(factor - 1);
+    let status: ScaleCheck['status'] = 'agrees';
+    if (error === null || error > 0.1) {
+      status = 'inconclusive';
+      warnings.push({ code: 'SCALE_UNCHECKED', message: 'The track is too short to cross-check the calibration against gravity; trust the calibration points alone.' });
+    } else if (dev > 0.2 && dev > 4 * error) {
+      // A model without lift (or without air) shifts the gravity it fits by whatever force it leaves
+      // out: blame the calibration only when the drag-lift model with standard gravity cannot do as well.
+      let explainedByModel = false;
+      if (model !== 'drag-lift' && ball && gRun) {
+        try {
+          const rich = staged(plain('drag-lift'), [p[0], p[1], p[2], p[3], model === 'drag' ? p[4] : cd0, 0]);
+          explainedByModel = bic(rich, n) <= bic(gRun, n) + 2;
+        } catch (e) {
+          if (!isPhysicsError(e)) throw e;
+        }
+      }
+      if (!explainedByModel) {
+        throw scaleError(factor, 'from a fit with gravity free',
+          model === 'drag-lift' || ball ? '' : `; or the ${model} model leaves out the air's force on this ball: give the ball and fit with a drag model`);
+      }
+      status = 'disagrees';
+      warnings.push({
+        code: 'SCALE_DISAGREES',
+        message: `Gravity fitted with the ${model} model is ${fmtNum(dev * 100, 2)} % ${factor > 1 ? 'above' : 'below'} standard, but the drag-lift model explains the flight as well with standard gravity: the ball carries lift (spin) or drag that the ${model} model leaves out. Fit with the auto or drag-lift model.`,
+      });
+    } else if (dev > 0.03 && dev > 2.5 * error) {
+      status = 'disagrees';
+      warnings.push({
+        code: 'SCALE_DISAGREES',
+        message: `Gravity fitted from the flight is ${fmtNum(dev * 100, 2)} % ${factor > 1 ? 'above' : 'below'} standard (±${fmtNum(error * 100, 2)} %): the calibration scale may be off by that much${model === 'drag-lift' ? '' : ', or the ball carries lift (spin) — try the drag-lift model'}. Re-check the reference distance and the frame rate.`,
+      });
+    } else if (error > 0.03) status = 'inconclusive';
+    scaleCheck = { factor, error, status };
+  }
+
+  // Derived flight and its standard errors through the variational equations.
+  const cd = idx('cd') >= 0 ? p[idx('cd')] : null;
+  const cl = idx('cl') >= 0 ? p[idx('cl')] : null;
+  const beta = idx('beta') >= 0 ? p[idx('beta')] : null;
+  const coeffs: MotionCoefficients = { model, k: kappa * (cd ?? 0), kl: kappa * (cl ?? 0), beta: beta ?? 0, g: o.gravity, wind: o.windSpeed };
+  const sens = sensList(names);
+  let derived: ReturnType<typeof derivedWithErrors>, std: ReturnType<typeof derivedWithErrors>;
+  const stdAir = standardAir();
+  const stdKappa = ball ? dragFactor(ball, stdAir) : 0;
+  try {
+    derived = derivedWithErrors(coeffs, kappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
+    const stdBeta = beta === null ? 0 : (beta * stdAir.viscosityPaS) / air.viscosityPaS; // Stokes: b = 3πμD
+    const stdCoeffs: MotionCoefficients = { model, k: stdKappa * (cd ?? 0), kl: stdKappa * (cl ?? 0), beta: stdBeta, g: STANDARD_GRAVITY, wind: 0 };
+    std = derivedWithErrors(stdCoeffs, stdKappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
+  } catch (e) {
+    if (!isPhysicsError(e) || (e.code !== 'INTEGRATION_FAILED' && e.code !== 'NO_LANDING')) throw e;
+    const what = [cd !== null ? `C_d ${fmtNum(cd, 2)}` : '', cl !== null ? `C_L ${fmtNum(cl, 2)}` : '', beta !== null ? `drag rate ${fmtNum(beta, 2)}/s` : ''].filter(Boolean).join(', ');
+    throw new PhysicsError('FIT_FAILED', `The fitted ${model} flight (${what || 'no air'}) does not come down to the ground: the points may not be one ball's flight, or the scale or timing is far off. Check the trace and the calibration, or try another model.`);
+  }
+  const flight = derived.summary;
+  const vac = summarize({ model: 'vacuum', k: 0, kl: 0, beta: 0, g: o.gravity, wind: 0 }, 0, x0, y0, vx0, vy0, o.rtol);
+
+  const speed = Math.hypot(vx0, vy0);
+  const gradSpeed = new Float64Array(np), gradAngle = new Float64Array(np);
+  gradSpeed[2] = vx0 / speed; gradSpeed[3] = vy0 / speed;
+  gradAngle[2] = (-vy0 / (speed * speed)) * (180 / Math.PI); gradAngle[3] = (vx0 / (speed * speed)) * (180 / Math.PI);
+
+  const uAir = vx0 - o.windSpeed;
+  const vAir = Math.hypot(uAir, vy0);
+  let terminalSpeed: number | null = null, dragToWeight: number | null = null;
+  if ((model === 'drag' || model === 'drag-lift') && cd !== null && cd > 0) {
+    terminalSpeed = Math.sqrt(o.gravity / (kappa * cd));
+    dragToWeight = (kappa * cd * vAir * vAir) / o.gravity;
+  } else if (model === 'linear' && beta !== null && beta > 0) {
+    terminalSpeed = o.gravity / beta;
+    dragToWeight = (beta * vAir) / o.gravity;
+  }
+  let reynolds: number | null = null, regime: DragRegime | null = null, nearDragCrisis: boolean | null = null;
+  if (ball) {
+    reynolds = reynoldsNumber(vAir, ball.diameterM, air);
+    const r = dragRegime(reynolds, ball.crisisReynolds);
+    regime = r.regime;
+    nearDragCrisis = r.nearDragCrisis;
+  }
+
+  const { d, noise } = runNoise(chosen, n);
+  let ss = 0;
+  for (let k = 0; k < n; k++) ss += d[k] * d[k];
+  const rms = Math.sqrt(ss / n);
+  const outliers: number[] = [];
+  if (robust) for (let k = 0; k < n; k++) if (d[k] > OUTLIER_SIGMAS * Math.SQRT2 * noise) outliers.push(k + 1);
+  const trackEnd = prep.tau[n - 1];
+  const extrapolated = trackEnd < 0.95 * flight.flightTime;
+  const cdErr = stdErr(cov, np, idx('cd'));
+  const clErr = stdErr(cov, np, idx('cl'));
+
+  // Warnings a coach or analyst can act on.
+  if (!chosen.lm.converged) {
+    warnings.push({ code: 'NOT_CONVERGED', message: `The fit stopped without converging (${chosen.lm.stopReason}); treat the numbers as rough and check the track for points from another object.` });
+  }
+  if (cd !== null && cd < 0) {
+    warnings.push({ code: 'NEGATIVE_CD', message: `The fitted drag coefficient is negative (${fmtNum(cd, 2)}${cdErr !== null ? ` ± ${fmtNum(cdErr, 2)}` : ''}): the ball would speed up by itself, which is impossible. Check the calibration scale, the wind (a tailwind must be entered) and the traced points; the drag values of this fit are not physical.` });
+  }
+  if (beta !== null && beta < 0) {
+    warnings.push({ code: 'NEGATIVE_CD', message: `The fitted drag rate is negative (${fmtNum(beta, 2)} 1/s): the ball would speed up by itself. Check the calibration, the wind and the traced points.` });
+  }
+  if (cd !== null && cd >= 0 && ball?.cdRange && cdErr !== null && !priorInfo?.used) {
+    const { min, max } = ball.cdRange;
+    if (cd < min - 2 * cdErr || cd > max + 2 * cdErr) {
+      warnings.push({ code: 'CD_OUTSIDE_RANGE', message: `C_d = ${fmtNum(cd, 3)} ± ${fmtNum(cdErr, 2)} lies outside the typical ${min}–${max} for ${ball.name ?? 'this ball'}: check the ball, the air density and the wind; a knuckling, wobbling or tumbling ball can also do this.` });
+    }
+  }
+  if (extrapolated) {
+    warnings.push({ code: 'EXTRAPOLATED', message: `The track ends ${fmtNum(trackEnd, 3)} s after the release, ${Math.round((100 * trackEnd) / flight.flightTime)} % of the ${fmtNum(flight.flightTime, 3)} s flight: carry, landing and hang time are extrapolated with the fitted model.` });
+  }
+  if (outliers.length > 0) {
+    const list = outliers.slice(0, 8).join(', ') + (outliers.length > 8 ? ', …' : '');
+    warnings.push({ code: 'OUTLIERS_DOWNWEIGHTED', message: `${outliers.length} point${outliers.length > 1 ? 's' : ''} (${list}) lie far from the flight and were set aside by the robust fit: check them in the trace (another object, a mis-click).` });
+  }
+  if (clErr !== null && clErr > 0.15) {
+    warnings.push({ code: 'POORLY_DETERMINED', message: `The lift coefficient is poorly determined (±${fmtNum(clErr, 2)}): trace more of the flight, or use the drag model.` });
+  }
+  const speedErr = propagate(cov, gradSpeed);
+  if (speedErr !== null && speedErr > 0.1 * speed) {
+    warnings.push({ code: 'POORLY_DETERMINED', message: `The launch speed is poorly determined (±${fmtNum(speedErr, 2)} m/s): trace more frames after the release.` });
+  }
+  if (cl !== null && Math.abs(cl) > 0.5) {
+    warnings.push({ code: 'LARGE_LIFT', message: `The lift coefficient ${fmtNum(cl, 2)} is larger than spinning balls usually reach (|C_L| ≲ 0.4): check the calibration's level line and the wind.` });
+  }
+  if (nearDragCrisis && (model === 'drag' || model === 'drag-lift')) {
+    warnings.push({ code: 'NEAR_DRAG_CRISIS', message: `The Reynolds number at launch (${fmtNum(reynolds!, 2)}) is near this ball's drag crisis: C_d may change during the flight, and the fitted value is an average over it.` });
+  }
+  if (model === 'linear' && reynolds !== null && reynolds > 1e3) {
+    warnings.push({ code: 'LINEAR_DRAG_UNUSUAL', message: `Linear drag holds for slow, small objects (Reynolds number below about 1); at ${fmtNum(reynolds, 2)} this ball's drag grows with the square of its speed: prefer the drag model.` });
+  }
+
+  const aero: FlightAero = { model, ...(cd !== null ? { cd } : {}), ...(cl !== null ? { cl } : {}), ...(beta !== null ? { dragRate: beta } : {}) };
+  const launch: Launch = { speed, angleDeg: (Math.atan2(vy0, vx0) * 180) / Math.PI, height: y0 };
+  return {
+    model,
+    converged: chosen.lm.converged,
+    stopReason: chosen.lm.stopReason,
+    iterations,
+    evaluations,
+    launch: {
+      ...launch, x: prep.direction * x0, vx: vx0, vy: vy0,
+      speedError: speedErr, angleDegError: propagate(cov, gradAngle), heightError: stdErr(cov, np, 1),
+    },
+    cd, cdError: cdErr, cl, clError: clErr,
+    dragRate: beta, dragRateError: stdErr(cov, np, idx('beta')),
+    flight,
+    errors: { ...derived.errors, standardCarry: std.errors.carry },
+    terminalSpeed, dragToWeight, reynolds, regime, nearDragCrisis,
+    vacuum: { carry: vac.carry, apexHeight: vac.apexHeight, flightTime: vac.flightTime },
+    standardCarry: std.summary.carry,
+    rms, noise, points: n, outliers, trackEnd, extrapolated,
+    scaleCheck, modelSelection: selection, cdPrior: priorInfo,
+    warnings,
+    setup: { launch, aero, ball, air, windSpeed: o.windSpeed, gravity: o.gravity },
+    track: { t0: prep.t0, direction: prep.direction },
+    covariance: cov ? { params: names, matrix: Array.from({ length: np }, (_, i) => Array.from(cov.subarray(i * np, (i + 1) * np))) } : null,
+  };
+}
+
+/**
+ * Flight summary with standard errors of carry, apex, times and landing speed, from the state's
+ * sensitivities at the events: t_L moves by −S_y/v_y at landing, the carry by S_x + vₓ·δt_L; the
+ * apex time by −S_vy/a_y (implicit function theorem on the event conditions y = 0 and v_y = 0).
+ */
+function derivedWithErrors(c: MotionCoefficients, kappa: number, x0: number, y0: number, vx0: number, vy0: number,
+  sens: SensitivityParam[], cov: Float64Array | null, np: number, rtol: number) {
+  // Gravity is fixed in the final fit; only launch and aerodynamic columns matter.
+  const s = cov ? sens.filter((k) => k !== 'g') : [];
+  const raw = flyToGround(c, kappa, initialState(x0, y0, vx0, vy0, s), s, rtol, true);
+  const summary = summaryOf(c, raw, x0, y0, vx0, vy0);
+  const none = { carry: null, apexHeight: null, apexTime: null, flightTime: null, landingSpeed: null };
+  if (!cov) return { summary, errors: none };
+  const L = raw.landing.y;
+  const [axL, ayL] = acceleration(c, L[2], L[3]);
+  const gCarry = new Float64Array(np), gTL = new Float64Array(np), gApexH = new Float64Array(np), gApexT = new Float64Array(np), gLs = new Float64Array(np);
+  // Column 0 (x0) moves nothing relative to the release; column 1 (y0) shifts the state by (0, 1, 0, 0).
+  const col = (j: number, st: Float64Array, comp: number) => (j === 1 ? (comp === 1 ? 1 : 0) : st[4 + 4 * (j - 2) + comp]);
+  const vL = Math.hypot(L[2], L[3]);
+  for (let j = 1; j < np && j < 2 + s.length; j++) {
+    const dt = -col(j, L, 1) / L[3];
+    gTL[j] = dt;
+    gCarry[j] = col(j, L, 0) + L[2] * dt;
+    const dvx = col(j, L, 2) + axL * dt, dvy = col(j, L, 3) + ayL * dt;
+    gLs[j] = (L[2] * dvx + L[3] * dvy) / vL;
+    if (raw.apex) {
+      const A = raw.apex.y;
+      const [, ayA] = acceleration(c, A[2], A[3]);
+      const dtA = -col(j, A, 3) / ayA;
+      gApexT[j] = dtA;
+      gApexH[j] = col(j, A, 1);
+    } else if (j === 1) gApexH[j] = 1;
+  }
+  return {
+    summary,
+    errors: {
+      carry: propagate(cov, gCarry), apexHeight: propagate(cov, gApexH), apexTime: raw.apex ? propagate(cov, gApexT) : null,
+      flightTime: propagate(cov, gTL), landingSpeed: propagate(cov, gLs),
+    },
+  };
+}
+
+/**
+ * Points of a fitted flight for charts, from the release to the ground, in the input's coordinates
+ * (time in the input clock, x in the input direction).
+ * @param fit a result of {@link fitFlight}; @param points how many (≥ 2), evenly timed.
+ */
+export function fittedPath(fit: FitResult, points = 101): { t: number[]; x: number[]; y: number[] } {
+  const { setup } = fit;
+  const ball = setup.ball ?? undefined;
+  const kappa = ball ? dragFactor(ball, setup.air) : 0;
+  const c: MotionCoefficients = {
+    model: fit.model, k: kappa * (fit.cd ?? 0), kl: kappa * (fit.cl ?? 0), beta: fit.dragRate ?? 0, g: setup.gravity, wind: setup.windSpeed,
+  };
+  const x0 = fit.track.direction * fit.launch.x;
+  const path = samplePath(c, kappa, x0, fit.launch.height, fit.launch.vx, fit.launch.vy, fit.flight.flightTime, Math.max(2, points));
+  return {
+    t: path.t.map((t) => t + fit.track.t0),
+    x: path.x.map((x) => fit.track.direction * x),
+    y: path.y,
+  };
+}

@@ -1,0 +1,98 @@
+import { spawnSync } from 'node:child_process';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { runFitCli } from '../../scripts/fit/cli';
+import { FIXTURES, FIXTURE_DIR, fixtureText } from '../../scripts/fit/generate-tracks';
+
+const dir = 'tests/fixtures/tracks';
+const file = (name: string) => join(dir, name);
+
+async function run(args: string[]): Promise<{ status: number; out: string[]; err: string[] }> {
+  const out: string[] = [], err: string[] = [];
+  const status = await runFitCli(args, { out: (l) => out.push(l), err: (l) => err.push(l) });
+  return { status, out, err };
+}
+
+const REQUIRED_KEYS = ['file', 'model', 'launchSpeed', 'launchAngle', 'launchHeight', 'cd', 'cdError', 'cl', 'clError', 'apexHeight',
+  'apexTime', 'timeUp', 'timeDown', 'flightTime', 'carry', 'landingSpeed', 'landingAngle', 'standardCarry', 'reynolds', 'rms', 'warnings'];
+
+describe('fit command', () => {
+  it('keeps its example tracks equal to what the generator writes', () => {
+    for (const f of FIXTURES) expect(readFileSync(join(FIXTURE_DIR, f.name), 'utf8')).toBe(fixtureText(f));
+  });
+
+  it('prints one JSON line per file in input order with the documented keys', async () => {
+    const r = await run([file('punt-evening.csv'), file('goal-kick-backspin.csv'), file('shot-put.csv')]);
+    expect(r.status).toBe(0);
+    expect(r.out).toHaveLength(3);
+    const lines = r.out.map((l) => JSON.parse(l));
+    expect(lines.map((l) => l.file)).toEqual([file('punt-evening.csv'), file('goal-kick-backspin.csv'), file('shot-put.csv')]);
+    for (const l of lines) for (const k of REQUIRED_KEYS) expect(l).toHaveProperty(k);
+    expect(Object.keys(lines[0]).slice(0, 3)).toEqual(['file', 'model', 'launchSpeed']);
+    // The punt was generated with C_d 0.26 at 26 m/s, 48°; the goal kick with backspin C_L 0.12.
+    expect(lines[0].model).toBe('drag');
+    expect(Math.abs(lines[0].cd - 0.26)).toBeLessThan(3 * lines[0].cdError);
+    expect(Math.abs(lines[0].launchAngle - 48)).toBeLessThan(0.1);
+    expect(lines[1].model).toBe('drag-lift');
+    expect(Math.abs(lines[1].cl - 0.12)).toBeLessThan(3 * lines[1].clError);
+  });
+
+  it('fits the other files and reports the failing ones with a non-zero status', async () => {
+    const r = await run([file('too-few.csv'), file('throw-in-short.csv'), file('millimetres.csv'), file('missing.csv')]);
+    expect(r.status).toBe(1);
+    const [few, short, mm, missing] = r.out.map((l) => JSON.parse(l));
+    expect(few).toMatchObject({ file: file('too-few.csv'), code: 'TOO_FEW_POINTS' });
+    expect(few.error).toMatch(/at least 5/);
+    expect(short.carry).toBeGreaterThan(20);
+    expect(short.warnings.map((w: { code: string }) => w.code)).toContain('EXTRAPOLATED');
+    expect(mm).toMatchObject({ code: 'SCALE_SUSPECT' });
+    expect(mm.error).toMatch(/millimetres/);
+    expect(missing).toMatchObject({ file: file('missing.csv'), code: 'READ_FAILED' });
+    expect(missing.error).toMatch(/ENOENT/);
+  });
+
+  it('uses the command-line ball and air for files that do not carry them', async () => {
+    const text = readFileSync(file('punt-evening.csv'), 'utf8').split('\n').filter((l) => !/^# (ball|temperature_c|pressure_pa|humidity_pct):/.test(l)).join('\n');
+    const args = ['--mass', '0.43', '--diameter', '0.2196', '--temperature', '12', '--pressure', '101200', '--humidity', '70', '--model', 'drag', 'bare.csv'];
+    const out: string[] = [];
+    const status = await runFitCli(args, { out: (l) => out.push(l), err: () => {}, readFile: async () => text });
+    expect(status).toBe(0);
+    const line = JSON.parse(out[0]);
+    expect(line.airDensity).toBeCloseTo(1.2324, 3);
+    expect(Math.abs(line.cd - 0.26)).toBeLessThan(0.005);
+  });
+
+  it.each([
+    [['--mass', '0.43', 'a.csv'], /--mass and --diameter go together/],
+    [['--ball', 'football-5', '--mass', '0.43', '--diameter', '0.22', 'a.csv'], /either --ball or --mass/],
+    [['--rho', '1.2', '--altitude', '1000', 'a.csv'], /either --rho or the weather/],
+    [['--model', 'spin', 'a.csv'], /--model must be/],
+    [['--wind', 'fast', 'a.csv'], /--wind needs a number/],
+    [['--ball', 'beachball', 'a.csv'], /Unknown ball "beachball"/],
+    [['--frobnicate', 'a.csv'], /Unknown option/],
+    [[], /at least one CSV file/],
+  ])('prints the usage and exits 2 on wrong options (%j)', async (args, message) => {
+    const r = await run(args);
+    expect(r.status).toBe(2);
+    expect(r.err[0]).toMatch(message);
+    expect(r.err.join('\n')).toMatch(/Usage: npm run --silent fit --/);
+    expect(r.out).toEqual([]);
+  });
+
+  it('prints the help and the ball catalogue', async () => {
+    const help = await run(['--help']);
+    expect(help.status).toBe(0);
+    expect(help.out[0]).toMatch(/--model auto\|vacuum\|linear\|drag\|drag-lift/);
+    const balls = await run(['--balls']);
+    expect(balls.out.map((l) => JSON.parse(l).id)).toContain('football-5');
+  });
+
+  it('runs as `npm run --silent fit` with the documented exit status', () => {
+    const r = spawnSync('npm', ['run', '--silent', 'fit', '--', file('shot-put.csv'), file('too-few.csv')], { encoding: 'utf8', timeout: 60000 });
+    expect(r.status).toBe(1);
+    const lines = r.stdout.trim().split('\n').map((l) => JSON.parse(l));
+    expect(lines[0].file).toBe(file('shot-put.csv'));
+    expect(lines[1].code).toBe('TOO_FEW_POINTS');
+  });
+});
