@@ -5,7 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import { existsSync, readFileSync } from 'node:fs';
-import { mkdir } from 'node:fs/promises';
+import { mkdir, readdir, rm } from 'node:fs/promises';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { readTruth, renderFlightClip, type FlightClipSpec, type RenderedClip } from '../../../server/video/synth';
@@ -22,6 +22,10 @@ export async function testClip(name: string, spec: FlightClipSpec): Promise<Rend
   const truthPath = `${videoPath}.truth.json`;
   if (existsSync(videoPath) && existsSync(truthPath)) return { videoPath, truthPath, truth: await readTruth(truthPath) };
   await mkdir(TEST_CLIP_DIR, { recursive: true });
+  // Clips of an older spec or generator under the same name are stale: remove them.
+  for (const file of await readdir(TEST_CLIP_DIR)) {
+    if (file.startsWith(`${name}-`) && !file.startsWith(`${name}-${key}.`)) await rm(join(TEST_CLIP_DIR, file), { force: true });
+  }
   return renderFlightClip(videoPath, spec);
 }
 
@@ -30,7 +34,7 @@ export const CLIP_SPECS = {
   /** Small and slow to film: 30 fps, the ball lands inside the picture. */
   lowRate: { width: 320, height: 240, captureFps: 30, durationS: 2.6, ballRadiusPx: 4, seed: 3 },
   /** 60 fps, a fast flat throw that leaves through the right edge. */
-  flat60: { width: 640, height: 360, captureFps: 60, durationS: 1.5, ballRadiusPx: 6, speedMps: 30, angleDeg: 18, seed: 5 },
+  flat60: { width: 640, height: 360, captureFps: 60, durationS: 1.9, ballRadiusPx: 6, speedMps: 30, angleDeg: 18, seed: 5 },
   /** Slow motion: filmed at 120 fps, stored to play back at 30. */
   slowMotion: { width: 480, height: 270, captureFps: 120, playbackFps: 30, durationS: 1.2, ballRadiusPx: 5, speedMps: 16, angleDeg: 40, seed: 7 },
   /** A small ball, no motion blur, 50 fps. */

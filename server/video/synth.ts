@@ -1,0 +1,563 @@
+/**
+ * Test and demo clips made by the project itself: a ball flying a simulated flight over a
+ * textured, noisy playing-field scene, rendered frame by frame in memory and piped into ffmpeg,
+ * with the true ball centre of every frame written beside the clip. Also the bad files the
+ * upload checks must refuse.
+ *
+ * The flight here is a small stand-alone simulation (quadratic drag, classical RK4); it is not the
+ * measurement engine in shared/physics/ and must not depend on it, so that tests of the follower
+ * do not move when the engine changes.
+ */
+import { spawn } from 'node:child_process';
+import { copyFile, mkdir, readFile, rm, stat, truncate, writeFile } from 'node:fs/promises';
+import { dirname, join } from 'node:path';
+import { ffmpegPath, lastErrorLine, runTool } from './tools';
+
+/** Standard gravity, m/s² (3rd CGPM, 1901). */
+const G = 9.80665;
+
+export interface FlightClipSpec {
+  width: number;
+  height: number;
+  /** Capture rate: the rate the simulated camera films at (frames per second). */
+  captureFps: number;
+  /** Rate written in the container; less than `captureFps` makes a slow-motion clip. Default: captureFps. */
+  playbackFps?: number;
+  durationS: number;
+  /** Ball radius in pixels (drawn size, independent of the metre scale so small clips stay traceable). */
+  ballRadiusPx: number;
+  /** Scene scale, pixels per metre. Default: width / 36. */
+  pxPerMetre?: number;
+  /** Image position of the ground point under the launch, pixels. Defaults: x = 8 % of width, y = 85 % of height. */
+  launchXPx?: number;
+  groundYPx?: number;
+  /** Launch height above the ground, m. Default 1. */
+  launchHeightM?: number;
+  /** Launch speed, m/s, and angle above the horizontal, degrees. Defaults 14 m/s, 45°. */
+  speedMps?: number;
+  angleDeg?: number;
+  /** Time of launch in the clip, s; before it the ball rests at the launch point. Default 0.2. */
+  launchTimeS?: number;
+  /**
+   * Drag factor k = ρ·C_d·A / (2m), 1/m, in a = −g·ŷ − k·|v|·v. Default 0.013 (roughly a size-5
+   * football: ρ 1.2 kg/m³, C_d 0.25, A 0.038 m², m 0.43 kg).
+   */
+  dragPerMetre?: number;
+  /** Standard deviation of the per-frame sensor noise, gray levels. Default 3. */
+  noiseSigma?: number;
+  /** Add moving and static clutter (a walking figure, goalposts, a resting second ball). Default true. */
+  clutter?: boolean;
+  /** Exposure as a fraction of the frame interval, for motion blur; 0 = sharp. Default 0.3. */
+  exposure?: number;
+  /** Seed of the noise and texture, for reproducible clips. Default 1. */
+  seed?: number;
+  /** libx264 quality and speed. Defaults CRF 18, preset veryfast. */
+  crf?: number;
+  preset?: string;
+  /** A constant bit rate instead of a CRF, kbit/s, as phone cameras record (about 16 000 at 1080p60). */
+  bitrateKbps?: number;
+  /** Seconds between keyframes; phone cameras use about 1. Default: libx264's (up to 250 frames). */
+  keyframeIntervalS?: number;
+  /** Container rotation tag, degrees clockwise (the picture is stored turned back). Default 0. */
+  rotationDeg?: 0 | 90 | 180 | 270;
+}
+
+export interface TruthFrame {
+  frame: number;
+  /** Seconds at the capture rate. */
+  t: number;
+  /** True centre, pixels of the displayed picture. */
+  x: number;
+  y: number;
+  /** The whole disk is inside the picture. */
+  visible: boolean;
+  /** After launch and before landing. */
+  airborne: boolean;
+}
+
+export interface FlightTruth {
+  width: number;
+  height: number;
+  captureFps: number;
+  playbackFps: number;
+  ballRadiusPx: number;
+  launchFrame: number;
+  /** First frame at or after the landing instant, or null when the ball lands after the clip. */
+  landingFrame: number | null;
+  frames: TruthFrame[];
+}
+
+export interface RenderedClip {
+  videoPath: string;
+  truthPath: string;
+  truth: FlightTruth;
+}
+
+/** A small deterministic generator (mulberry32), so clips are the same on every run. */
+function rng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Smooth value noise in [0, 1] on a lattice of `cell` pixels (bilinear, smoothstep-eased). */
+function valueNoise(seed: number, cell: number): (x: number, y: number) => number {
+  const r = rng(seed);
+  const size = 256;
+  const lattice = new Float32Array(size * size).map(() => r());
+  const at = (i: number, j: number): number => lattice[(((j % size) + size) % size) * size + (((i % size) + size) % size)]!;
+  return (x, y) => {
+    const fx = x / cell;
+    const fy = y / cell;
+    const i = Math.floor(fx);
+    const j = Math.floor(fy);
+    let u = fx - i;
+    let v = fy - j;
+    u = u * u * (3 - 2 * u);
+    v = v * v * (3 - 2 * v);
+    const a = at(i, j) + (at(i + 1, j) - at(i, j)) * u;
+    const b = at(i, j + 1) + (at(i + 1, j + 1) - at(i, j + 1)) * u;
+    return a + (b - a) * v;
+  };
+}
+
+/**
+ * Flight with quadratic drag, a = −g·ŷ − k·|v|·v (Taylor, Classical Mechanics, 2005, §2.4),
+ * integrated with the classical fourth-order Runge–Kutta method (Kutta, Z. Math. Phys. 46 (1901)
+ * 435) at a fixed small step, sampled for interpolation.
+ */
+function simulateFlight(v0: number, angleRad: number, h0: number, k: number, dt: number, maxT: number) {
+  const ts: number[] = [0];
+  const xs: number[] = [0];
+  const ys: number[] = [h0];
+  let s = [0, h0, v0 * Math.cos(angleRad), v0 * Math.sin(angleRad)];
+  const f = (q: number[]): number[] => {
+    const speed = Math.hypot(q[2]!, q[3]!);
+    return [q[2]!, q[3]!, -k * speed * q[2]!, -G - k * speed * q[3]!];
+  };
+  let t = 0;
+  let landingT: number | null = null;
+  while (t < maxT) {
+    const k1 = f(s);
+    const k2 = f(s.map((v, i) => v + (dt / 2) * k1[i]!));
+    const k3 = f(s.map((v, i) => v + (dt / 2) * k2[i]!));
+    const k4 = f(s.map((v, i) => v + dt * k3[i]!));
+    const next = s.map((v, i) => v + (dt / 6) * (k1[i]! + 2 * k2[i]! + 2 * k3[i]! + k4[i]!));
+    if (next[1]! <= 0) {
+      // Landing between two steps: place it by linear interpolation of the height.
+      const frac = s[1]! / (s[1]! - next[1]!);
+      landingT = t + frac * dt;
+      ts.push(landingT);
+      xs.push(s[0]! + frac * (next[0]! - s[0]!));
+      ys.push(0);
+      break;
+    }
+    s = next;
+    t += dt;
+    ts.push(t);
+    xs.push(s[0]!);
+    ys.push(s[1]!);
+  }
+  const position = (time: number): [number, number] => {
+    if (time <= 0) return [0, h0];
+    if (time >= ts[ts.length - 1]!) return [xs[xs.length - 1]!, ys[ys.length - 1]!];
+    const i = Math.min(ts.length - 2, Math.floor(time / dt));
+    const a = (time - ts[i]!) / (ts[i + 1]! - ts[i]!);
+    return [xs[i]! + a * (xs[i + 1]! - xs[i]!), ys[i]! + a * (ys[i + 1]! - ys[i]!)];
+  };
+  return { position, landingT };
+}
+
+interface Scene {
+  rgb: Uint8ClampedArray;
+  width: number;
+  height: number;
+}
+
+/** The static part of the picture: sky, tree line, mown grass, a touchline, goalposts, a resting ball. */
+function paintScene(width: number, height: number, groundY: number, seed: number, clutter: boolean): Scene {
+  const rgb = new Uint8ClampedArray(width * height * 3);
+  const horizon = Math.round(height * 0.42);
+  const clouds = valueNoise(seed + 11, Math.max(8, width / 10));
+  const trees = valueNoise(seed + 23, Math.max(4, width / 40));
+  const grain = valueNoise(seed + 37, Math.max(2, width / 300));
+  const stripe = Math.max(8, Math.round(width / 12));
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const p = (y * width + x) * 3;
+      let r: number, g: number, b: number;
+      const treeTop = horizon - (0.02 + 0.05 * trees(x, 0)) * height;
+      if (y < treeTop) {
+        const a = y / horizon;
+        const c = Math.max(0, clouds(x, y) - 0.55) * 2.2;
+        r = 120 + 70 * a + 100 * c;
+        g = 165 + 50 * a + 80 * c;
+        b = 215 + 25 * a + 30 * c;
+      } else if (y < horizon) {
+        const t = grain(x, y);
+        r = 40 + 25 * t;
+        g = 70 + 35 * t;
+        b = 40 + 15 * t;
+      } else {
+        const band = Math.floor(x / stripe) % 2 === 0 ? 10 : -6;
+        const t = grain(x * 1.3, y * 2.1) - 0.5;
+        r = 70 + band + 30 * t;
+        g = 128 + band + 45 * t;
+        b = 58 + band * 0.5 + 20 * t;
+      }
+      rgb[p] = r;
+      rgb[p + 1] = g;
+      rgb[p + 2] = b;
+    }
+  }
+  const fill = (x0: number, y0: number, x1: number, y1: number, c: [number, number, number]): void => {
+    for (let y = Math.max(0, Math.round(y0)); y < Math.min(height, Math.round(y1)); y++) {
+      for (let x = Math.max(0, Math.round(x0)); x < Math.min(width, Math.round(x1)); x++) {
+        const p = (y * width + x) * 3;
+        rgb[p] = c[0];
+        rgb[p + 1] = c[1];
+        rgb[p + 2] = c[2];
+      }
+    }
+  };
+  const line = Math.max(1, Math.round(height / 200));
+  fill(0, groundY + 3 * line, width, groundY + 4 * line + 1, [225, 228, 220]);
+  if (clutter) {
+    // Goalposts: white like the ball, static; the background model must see them as background.
+    const post = Math.max(2, Math.round(width / 180));
+    const topY = horizon - 0.22 * height;
+    for (const gx of [0.86 * width, 0.95 * width]) fill(gx, topY, gx + post, groundY + 2 * line, [236, 236, 230]);
+    fill(0.86 * width, topY + 0.1 * height, 0.95 * width + post, topY + 0.1 * height + post, [236, 236, 230]);
+    // A second ball resting on the grass.
+    const rr = Math.max(3, Math.round(width / 110));
+    const cx = 0.52 * width;
+    const cy = groundY + 0.06 * height;
+    for (let y = Math.floor(cy - rr - 1); y <= cy + rr + 1; y++) {
+      for (let x = Math.floor(cx - rr - 1); x <= cx + rr + 1; x++) {
+        if (x < 0 || y < 0 || x >= width || y >= height) continue;
+        const cover = Math.min(1, Math.max(0, rr + 0.5 - Math.hypot(x - cx, y - cy)));
+        const p = (y * width + x) * 3;
+        rgb[p] = rgb[p]! * (1 - cover) + 230 * cover;
+        rgb[p + 1] = rgb[p + 1]! * (1 - cover) + 228 * cover;
+        rgb[p + 2] = rgb[p + 2]! * (1 - cover) + 215 * cover;
+      }
+    }
+  }
+  return { rgb, width, height };
+}
+
+/** A figure walking slowly along the ground: motion the follower must not mistake for the ball. */
+function paintWalker(frame: Uint8ClampedArray, width: number, height: number, groundY: number, t: number, duration: number): void {
+  const bodyW = Math.max(4, Math.round(width * 0.018));
+  const bodyH = Math.max(10, Math.round(height * 0.13));
+  const x0 = Math.round(width * (0.3 + 0.25 * (t / Math.max(duration, 1e-9))));
+  const y1 = Math.round(groundY + 2);
+  const y0 = y1 - bodyH;
+  for (let y = Math.max(0, y0); y < Math.min(height, y1); y++) {
+    for (let x = Math.max(0, x0); x < Math.min(width, x0 + bodyW); x++) {
+      const p = (y * width + x) * 3;
+      frame[p] = 40;
+      frame[p + 1] = 55;
+      frame[p + 2] = 110;
+    }
+  }
+  const hr = bodyW * 0.55;
+  const hx = x0 + bodyW / 2;
+  const hy = y0 - hr;
+  for (let y = Math.floor(hy - hr); y <= hy + hr; y++) {
+    for (let x = Math.floor(hx - hr); x <= hx + hr; x++) {
+      if (x < 0 || y < 0 || x >= width || y >= height || Math.hypot(x - hx, y - hy) > hr) continue;
+      const p = (y * width + x) * 3;
+      frame[p] = 170;
+      frame[p + 1] = 125;
+      frame[p + 2] = 95;
+    }
+  }
+}
+
+/**
+ * Draws the ball as a shaded disk with anti-aliased edges, averaged over the positions it takes
+ * during the exposure (motion blur). Coverage of an edge pixel is approximated by the distance of
+ * its centre to the rim, clamped to [0, 1].
+ */
+function paintBall(frame: Uint8ClampedArray, width: number, height: number, centres: Array<[number, number]>, r: number): void {
+  let minX = Infinity;
+  let minY = Infinity;
+  let maxX = -Infinity;
+  let maxY = -Infinity;
+  for (const [cx, cy] of centres) {
+    minX = Math.min(minX, cx);
+    maxX = Math.max(maxX, cx);
+    minY = Math.min(minY, cy);
+    maxY = Math.max(maxY, cy);
+  }
+  const x0 = Math.max(0, Math.floor(minX - r - 1));
+  const x1 = Math.min(width - 1, Math.ceil(maxX + r + 1));
+  const y0 = Math.max(0, Math.floor(minY - r - 1));
+  const y1 = Math.min(height - 1, Math.ceil(maxY + r + 1));
+  if (x0 > x1 || y0 > y1) return;
+  const n = centres.length;
+  // Light from upper left and in front: a bright side and a darker rim, as on a real ball.
+  const lx = -0.45;
+  const ly = -0.55;
+  const lz = Math.sqrt(1 - lx * lx - ly * ly);
+  for (let y = y0; y <= y1; y++) {
+    for (let x = x0; x <= x1; x++) {
+      let alpha = 0;
+      let shade = 0;
+      for (const [cx, cy] of centres) {
+        const dx = x + 0.5 - cx;
+        const dy = y + 0.5 - cy;
+        const d = Math.hypot(dx, dy);
+        const cover = Math.min(1, Math.max(0, r + 0.5 - d));
+        if (cover <= 0) continue;
+        const nx = dx / r;
+        const ny = dy / r;
+        const nz = Math.sqrt(Math.max(0, 1 - nx * nx - ny * ny));
+        const lambert = Math.max(0, nx * lx + ny * ly + nz * lz);
+        alpha += cover;
+        shade += cover * (0.62 + 0.38 * lambert);
+      }
+      if (alpha <= 0) continue;
+      const a = alpha / n;
+      const s = shade / alpha;
+      const p = (y * width + x) * 3;
+      frame[p] = frame[p]! * (1 - a) + 250 * s * a;
+      frame[p + 1] = frame[p + 1]! * (1 - a) + 248 * s * a;
+      frame[p + 2] = frame[p + 2]! * (1 - a) + 238 * s * a;
+    }
+  }
+}
+
+/**
+ * Renders a flight clip to `videoPath` (H.264 in MP4) and its truth to `videoPath` + `.truth.json`.
+ * Frame i is filmed at t = i / captureFps; the true centre is the ball's position at that instant
+ * (the middle of the exposure).
+ */
+export async function renderFlightClip(videoPath: string, spec: FlightClipSpec): Promise<RenderedClip> {
+  const { width, height, captureFps, durationS, ballRadiusPx: radius } = spec;
+  if (width % 2 || height % 2) throw new Error(`Clip size must be even for yuv420p (got ${width}×${height}).`);
+  const playbackFps = spec.playbackFps ?? captureFps;
+  const scale = spec.pxPerMetre ?? width / 36;
+  const launchX = spec.launchXPx ?? width * 0.08;
+  const groundY = spec.groundYPx ?? height * 0.85;
+  const launchT = spec.launchTimeS ?? 0.2;
+  const exposure = spec.exposure ?? 0.3;
+  const noiseSigma = spec.noiseSigma ?? 3;
+  const seed = spec.seed ?? 1;
+  const clutter = spec.clutter ?? true;
+  const frameCount = Math.round(durationS * captureFps);
+  const flight = simulateFlight(
+    spec.speedMps ?? 14,
+    ((spec.angleDeg ?? 45) * Math.PI) / 180,
+    spec.launchHeightM ?? 1,
+    spec.dragPerMetre ?? 0.013,
+    1 / (captureFps * 16),
+    durationS + 1,
+  );
+  const centreAt = (t: number): [number, number] => {
+    const [xm, ym] = flight.position(t - launchT);
+    return [launchX + xm * scale, groundY - ym * scale];
+  };
+
+  const scene = paintScene(width, height, groundY, seed, clutter);
+  // Sensor noise: a table of roughly normal values (sum of four uniforms), read at a fresh random
+  // offset each frame so the noise moves from frame to frame without a random draw per pixel.
+  const rand = rng(seed * 7919 + 1);
+  const noiseLen = 1 << 20;
+  const noise = new Int8Array(noiseLen);
+  const spread = noiseSigma * Math.sqrt(3);
+  for (let i = 0; i < noiseLen; i++) noise[i] = Math.round(((rand() + rand() + rand() + rand() - 2) / 2) * spread * 2);
+
+  await mkdir(dirname(videoPath), { recursive: true });
+  const args = [
+    '-v', 'error', '-nostdin', '-y',
+    '-f', 'rawvideo', '-pix_fmt', 'rgb24', '-s', `${width}x${height}`, '-framerate', String(playbackFps), '-i', 'pipe:0',
+    '-c:v', 'libx264', '-preset', spec.preset ?? 'veryfast', '-pix_fmt', 'yuv420p',
+  ];
+  if (spec.bitrateKbps) {
+    const k = Math.round(spec.bitrateKbps);
+    args.push('-b:v', `${k}k`, '-maxrate', `${k}k`, '-bufsize', `${2 * k}k`);
+  } else {
+    args.push('-crf', String(spec.crf ?? 18));
+  }
+  if (spec.keyframeIntervalS) args.push('-g', String(Math.max(1, Math.round(spec.keyframeIntervalS * playbackFps))));
+  const rotation = spec.rotationDeg ?? 0;
+  // Note: the picture is stored turned back and then tagged, so that a player (and ffmpeg's
+  // autorotate) shows the scene upright; the truth is in displayed pixels. ffmpeg 5.1 drops a
+  // `rotate` tag given while encoding, so the tag is added by a second, copying pass; its mov muxer
+  // then writes a display matrix that turns the picture counter-clockwise by the tag's angle.
+  const turnBack = { 90: 'transpose=cclock', 180: 'hflip,vflip', 270: 'transpose=clock' } as const;
+  const tagFor = { 90: '270', 180: '180', 270: '90' } as const;
+  const encodedPath = rotation === 0 ? videoPath : `${videoPath}.unrotated.mp4`;
+  if (rotation !== 0) args.push('-vf', turnBack[rotation]);
+  args.push('-movflags', '+faststart', encodedPath);
+  const child = spawn(ffmpegPath(), args, { stdio: ['pipe', 'ignore', 'pipe'] });
+  let stderr = '';
+  child.stderr.setEncoding('utf8');
+  child.stderr.on('data', (d: string) => {
+    stderr = (stderr + d).slice(-8000);
+  });
+  const exited = new Promise<number | null>((res, rej) => {
+    child.on('error', rej);
+    child.on('close', (code) => res(code));
+  });
+  const write = (buf: Uint8ClampedArray): Promise<void> =>
+    new Promise((res, rej) => {
+      const ok = child.stdin.write(Buffer.from(buf.buffer, buf.byteOffset, buf.byteLength), (err) => (err ? rej(err) : undefined));
+      if (ok) res();
+      else child.stdin.once('drain', res);
+    });
+
+  const frames: TruthFrame[] = [];
+  const frame = new Uint8ClampedArray(scene.rgb.length);
+  const subSamples = exposure > 0 ? 9 : 1;
+  const frameInterval = 1 / captureFps;
+  let flicker = 0;
+  for (let i = 0; i < frameCount; i++) {
+    const t = i / captureFps;
+    frame.set(scene.rgb);
+    if (clutter) paintWalker(frame, width, height, groundY, t, durationS);
+    const centres: Array<[number, number]> = [];
+    for (let s = 0; s < subSamples; s++) {
+      const dt = subSamples === 1 ? 0 : (s / (subSamples - 1) - 0.5) * exposure * frameInterval;
+      centres.push(centreAt(t + dt));
+    }
+    paintBall(frame, width, height, centres, radius);
+    flicker = Math.max(-2, Math.min(2, flicker + (rand() - 0.5)));
+    const offset = Math.floor(rand() * noiseLen);
+    const mask = noiseLen - 1;
+    const f = Math.round(flicker);
+    for (let p = 0, q = 0; p < frame.length; p += 3, q++) {
+      const nv = noise[(q + offset) & mask]! + f;
+      frame[p] = frame[p]! + nv;
+      frame[p + 1] = frame[p + 1]! + nv;
+      frame[p + 2] = frame[p + 2]! + nv;
+    }
+    await write(frame);
+    const [x, y] = centreAt(t);
+    const sinceLaunch = t - launchT;
+    frames.push({
+      frame: i,
+      t,
+      x,
+      y,
+      visible: x - radius >= 0 && y - radius >= 0 && x + radius <= width && y + radius <= height,
+      airborne: sinceLaunch > 0 && (flight.landingT === null || sinceLaunch < flight.landingT),
+    });
+  }
+  child.stdin.end();
+  const code = await exited;
+  if (code !== 0) throw new Error(`ffmpeg failed to encode the test clip: ${lastErrorLine(stderr)}`);
+  if (rotation !== 0) {
+    const res = await runTool(ffmpegPath(), [
+      '-v', 'error', '-nostdin', '-y', '-i', encodedPath, '-c', 'copy', '-metadata:s:v:0', `rotate=${tagFor[rotation]}`, '-movflags', '+faststart', videoPath,
+    ]);
+    await rm(encodedPath, { force: true });
+    if (res.code !== 0) throw new Error(`ffmpeg failed to tag the test clip's rotation: ${lastErrorLine(res.stderr)}`);
+  }
+
+  const landingFrame = flight.landingT === null ? null : Math.ceil((launchT + flight.landingT) * captureFps);
+  const truth: FlightTruth = {
+    width,
+    height,
+    captureFps,
+    playbackFps,
+    ballRadiusPx: radius,
+    launchFrame: Math.ceil(launchT * captureFps),
+    landingFrame: landingFrame !== null && landingFrame < frameCount ? landingFrame : null,
+    frames,
+  };
+  const truthPath = `${videoPath}.truth.json`;
+  await writeFile(truthPath, JSON.stringify(truth));
+  return { videoPath, truthPath, truth };
+}
+
+/** Reads a truth file written by `renderFlightClip`. */
+export async function readTruth(truthPath: string): Promise<FlightTruth> {
+  return JSON.parse(await readFile(truthPath, 'utf8')) as FlightTruth;
+}
+
+export interface BadFiles {
+  /** Plain text with a video's name. */
+  textAsMp4: string;
+  /** Zero bytes. */
+  empty: string;
+  /** An MP4 with its index up front, cut in the middle of its media data. */
+  truncatedMp4: string;
+  /** An MP4 with its index at the end, cut before the index. */
+  truncatedNoIndex: string;
+  /** An MP4 holding sound only. */
+  audioOnly: string;
+  /** An MP4 whose video sample entry names a codec no decoder knows. */
+  unknownCodec: string;
+  /** A PNG still named as a video. */
+  imageAsVideo: string;
+  /** Three frames, the third of another size. */
+  mixedSizeFrames: string[];
+  /** Three good frames of one size (PNG). */
+  goodFrames: string[];
+  /** A JPEG frame among PNG frames of the same size. */
+  mixedTypeFrames: string[];
+}
+
+/** Makes every kind of bad upload in `dir` (created when missing). Needs ffmpeg; takes about a second. */
+export async function makeBadFiles(dir: string): Promise<BadFiles> {
+  await mkdir(dir, { recursive: true });
+  const ff = async (args: string[]): Promise<void> => {
+    const res = await runTool(ffmpegPath(), ['-v', 'error', '-nostdin', '-y', ...args]);
+    if (res.code !== 0) throw new Error(`ffmpeg failed making a bad test file: ${lastErrorLine(res.stderr)}`);
+  };
+  const p = (name: string): string => join(dir, name);
+
+  await writeFile(p('notes.mp4'), 'Fennick Vale training notes\nThis is not a video.\n');
+  await writeFile(p('empty.mp4'), '');
+
+  const src = ['-f', 'lavfi', '-i', 'testsrc=size=160x120:rate=25', '-t', '2'];
+  await ff([...src, '-c:v', 'libx264', '-preset', 'ultrafast', '-pix_fmt', 'yuv420p', '-movflags', '+faststart', p('whole-faststart.mp4')]);
+  await copyFile(p('whole-faststart.mp4'), p('cut.mp4'));
+  await truncate(p('cut.mp4'), Math.floor((await stat(p('cut.mp4'))).size * 0.6));
+  await ff([...src, '-c:v', 'libx264', '-preset', 'ultrafast', '-pix_fmt', 'yuv420p', p('whole-index-last.mp4')]);
+  await copyFile(p('whole-index-last.mp4'), p('cut-no-index.mp4'));
+  await truncate(p('cut-no-index.mp4'), Math.floor((await stat(p('cut-no-index.mp4'))).size * 0.7));
+
+  await ff(['-f', 'lavfi', '-i', 'sine=frequency=440:duration=1', '-c:a', 'aac', p('sound-only.mp4')]);
+
+  // Rename the sample entry `avc1` inside `stsd` to a code no decoder knows: the container stays
+  // valid, the stream's codec becomes unreadable.
+  const whole = await readFile(p('whole-faststart.mp4'));
+  const stsd = whole.indexOf('stsd', 0, 'latin1');
+  const entry = whole.indexOf('avc1', stsd, 'latin1');
+  if (stsd < 0 || entry < 0) throw new Error('Could not find the video sample entry to alter.');
+  whole.write('zq9x', entry, 'latin1');
+  await writeFile(p('unknown-codec.mp4'), whole);
+
+  await ff(['-f', 'lavfi', '-i', 'color=c=teal:size=64x48', '-frames:v', '1', p('still.mp4.png')]);
+  await copyFile(p('still.mp4.png'), p('still.mp4'));
+
+  const frame = async (name: string, size: string, n: number): Promise<string> => {
+    await ff(['-f', 'lavfi', '-i', `testsrc=size=${size}:rate=25`, '-vf', `select=eq(n\\,${n})`, '-frames:v', '1', p(name)]);
+    return p(name);
+  };
+  const goodFrames = [await frame('f1.png', '160x120', 0), await frame('f2.png', '160x120', 1), await frame('f3.png', '160x120', 2)];
+  const mixedSizeFrames = [goodFrames[0]!, goodFrames[1]!, await frame('f10.png', '200x150', 3)];
+  const mixedTypeFrames = [goodFrames[0]!, goodFrames[1]!, await frame('f11.jpg', '160x120', 4)];
+
+  return {
+    textAsMp4: p('notes.mp4'),
+    empty: p('empty.mp4'),
+    truncatedMp4: p('cut.mp4'),
+    truncatedNoIndex: p('cut-no-index.mp4'),
+    audioOnly: p('sound-only.mp4'),
+    unknownCodec: p('unknown-codec.mp4'),
+    imageAsVideo: p('still.mp4'),
+    mixedSizeFrames,
+    goodFrames,
+    mixedTypeFrames,
+  };
+}
