@@ -5,6 +5,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { config } from '../../../server/config';
 import { Clip } from '../../../server/models';
 import { makeBadFiles, type BadFiles } from '../../../server/video/synth';
+import { DEFAULT_MAX_SIDE } from '../../../server/video';
 import { createClubFixture, type ClubFixture } from '../../support/app';
 import { clipRowCount, clubPath, createSession, flightClip, getJob, upload, useTestStorage, type TestStorage } from './helpers';
 import { testWorker } from './worker-helper';
@@ -87,8 +88,8 @@ describe('clip uploads', () => {
     expect(res.status).toBe(201);
     await testWorker().drain();
     const clip = (await fx.coach.get(clubPath(fx, `/clips/${res.body.data.clip.id}`))).body.data;
-    expect(clip).toMatchObject({ width: 1600, height: 96, frameWidth: 1280, frameScale: 0.8, frameCount: 9 });
-    // Points are in clip pixels: x = 1500 is inside the 1600-pixel picture though the images are 1280 wide.
+    expect(clip).toMatchObject({ width: 1600, height: 96, frameWidth: DEFAULT_MAX_SIDE, frameScale: DEFAULT_MAX_SIDE / 1600, frameCount: 9 });
+    // Points are in clip pixels: x = 1500 is inside the 1600-pixel picture though the images are narrower.
     const flight = await fx.coach.post(clubPath(fx, `/clips/${clip.id}/flights`), { athleteId: fx.otherAthleteProfileId, action: 'punt', ballId: 'football-5' });
     const put = await fx.coach.put(clubPath(fx, `/flights/${flight.body.data.id}/points`), { points: [{ frame: 2, xPx: 1500, yPx: 50 }] });
     expect(put.status).toBe(200);
