@@ -21,6 +21,10 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Sessions', icon: 'pi pi-calendar', routeName: 'sessions', roles: EVERYONE },
   { label: 'Clips', icon: 'pi pi-video', routeName: 'clips', roles: EVERYONE },
   // -- end sessions, clips (tracing helper) --
+  // -- flights, flight report (report helper) --
+  // -- end flights, flight report (report helper) --
+  // -- planner (planner helper) --
+  // -- end planner (planner helper) --
   { label: 'Squad', icon: 'pi pi-users', routeName: 'squad', roles: STAFF },
   { label: 'Club', icon: 'pi pi-building', routeName: 'club', roles: ADMIN },
 ];

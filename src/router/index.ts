@@ -86,6 +86,10 @@ const routes: RouteRecordRaw[] = [
         meta: { title: 'Trace' },
       },
       // -- end sessions, clips, trace routes (tracing helper) --
+      // -- flights, flight report routes (report helper) --
+      // -- end flights, flight report routes (report helper) --
+      // -- planner routes (planner helper) --
+      // -- end planner routes (planner helper) --
       {
         path: ':pathMatch(.*)*',
         name: 'not-found',
