@@ -1,0 +1,54 @@
+/**
+ * The one place ECharts is configured: only the charts and components the screens use are registered,
+ * which keeps the bundle small. Import `VChart` from here rather than from vue-echarts directly.
+ */
+import { use } from 'echarts/core';
+import { CanvasRenderer } from 'echarts/renderers';
+import { HeatmapChart, LineChart, ScatterChart } from 'echarts/charts';
+import {
+  DataZoomComponent,
+  GridComponent,
+  LegendComponent,
+  MarkLineComponent,
+  MarkPointComponent,
+  TitleComponent,
+  TooltipComponent,
+  VisualMapComponent,
+} from 'echarts/components';
+import VChart from 'vue-echarts';
+
+use([
+  CanvasRenderer,
+  LineChart,
+  ScatterChart,
+  HeatmapChart,
+  GridComponent,
+  TooltipComponent,
+  LegendComponent,
+  MarkPointComponent,
+  MarkLineComponent,
+  VisualMapComponent,
+  DataZoomComponent,
+  TitleComponent,
+]);
+
+/** Colours of PRODUCT.md's "Look" for charts. */
+export const CHART_COLOURS = {
+  fitted: '#D97706',
+  traced: '#64748B',
+  vacuum: '#9CA3AF',
+  primary: '#0F766E',
+  ink: '#1F2933',
+  caution: '#D97706',
+  danger: '#B91C1C',
+} as const;
+
+/**
+ * Whether charts should animate: browser tests set `window.__ARCWRIGHT_NO_ANIMATION__ = true`
+ * before load so that screenshots are taken of finished charts.
+ */
+export function chartAnimation(): boolean {
+  return !(globalThis as { __ARCWRIGHT_NO_ANIMATION__?: boolean }).__ARCWRIGHT_NO_ANIMATION__;
+}
+
+export { VChart };
