@@ -7,7 +7,7 @@ const noServer = { group: ['**/server/**', '../server/*', '../../server/*'], mes
 const noSrc = { group: ['**/src/**', '@/*', '../src/*', '../../src/*'], message: 'server/ must not import src/: share code through shared/.' };
 
 export default defineConfigWithVueTs(
-  { ignores: ['dist/**', 'node_modules/**', '.data/**', 'test-results/**', 'coverage/**'] },
+  { ignores: ['dist/**', 'dist-*/**', 'node_modules/**', '.data/**', 'test-results/**', 'coverage/**'] },
   pluginVue.configs['flat/essential'],
   vueTsConfigs.recommended,
   {

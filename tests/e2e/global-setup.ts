@@ -21,6 +21,8 @@ declare module 'vitest' {
 
 const HOST = '127.0.0.1';
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+// The built client to serve; parallel local runs may build into their own folder (vite build --outDir).
+const clientDir = process.env.E2E_CLIENT_DIR ? join(ROOT, process.env.E2E_CLIENT_DIR) : join(ROOT, 'dist');
 
 // Note: this project (tsconfig.e2e.json) cannot import tests/support, so the two database steps are repeated here.
 const dbSettings = {
@@ -101,7 +103,7 @@ function stop(child: ChildProcess): Promise<void> {
 export default async function setup(project: TestProject): Promise<() => Promise<void>> {
   const resultsDir = join(ROOT, 'test-results');
   mkdirSync(resultsDir, { recursive: true });
-  if (!existsSync(join(ROOT, 'dist', 'index.html'))) {
+  if (!existsSync(join(clientDir, 'index.html'))) {
     throw new Error('dist/index.html is missing: build the client first with `npx vite build` (npm test does it).');
   }
   if (process.env.ARCWRIGHT_SKIP_DB !== '1' && process.env.DB_PRIVATE !== '0') ensurePrivateDb();
@@ -127,7 +129,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
     DB_USER: dbSettings.user,
     DB_PASSWORD: dbSettings.password,
     DB_NAME: dbName,
-    CLIENT_DIR: join(ROOT, 'dist'),
+    CLIENT_DIR: clientDir,
     STORAGE_DIR: join(ROOT, '.data', 'e2e-storage'),
     OAUTH_FAKE_PORT: String(oauthPort),
     GOOGLE_SIGNIN: '1',
