@@ -16,20 +16,10 @@ DEV_PORT="${DEV_PORT:-5173}"
 # Google sign-in must come back through Vite's origin so the session cookie and the page share a host.
 export GOOGLE_CALLBACK_URL="${GOOGLE_CALLBACK_URL:-http://127.0.0.1:$DEV_PORT/api/v1/auth/google/callback}"
 
-PIDS=()
-cleanup() {
-  trap - EXIT INT TERM
-  local pid
-  for pid in "${PIDS[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
-  for pid in "${PIDS[@]}"; do wait "$pid" 2>/dev/null || true; done
-}
-trap cleanup EXIT
-trap 'exit 130' INT
-trap 'exit 143' TERM
+stop_children_on_exit
 
 if [ "$FAKES" != "0" ]; then
-  run_ts server/fakes/run.ts &
-  PIDS+=($!)
+  start_ts server/fakes/run.ts
 fi
 NODE_ENV=development npx tsx watch --clear-screen=false server/index.ts &
 PIDS+=($!)

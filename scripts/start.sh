@@ -21,26 +21,15 @@ if [ "${SKIP_BUILD:-0}" != "1" ]; then
 fi
 [ -f "$ROOT/dist/index.html" ] || die "dist/index.html is missing: the client was not built. Run npm run build and look at its errors."
 
-PIDS=()
-cleanup() {
-  trap - EXIT INT TERM
-  local pid
-  for pid in "${PIDS[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
-  for pid in "${PIDS[@]}"; do wait "$pid" 2>/dev/null || true; done
-}
-trap cleanup EXIT
-trap 'exit 130' INT
-trap 'exit 143' TERM
+stop_children_on_exit
 
 if [ "$FAKES" != "0" ]; then
-  run_ts server/fakes/run.ts &
-  PIDS+=($!)
+  start_ts server/fakes/run.ts
   wait_for_http "http://127.0.0.1:$OAUTH_FAKE_PORT/health" 30 "${PIDS[-1]}" || die "The OAuth fake did not start (port $OAUTH_FAKE_PORT)."
 fi
 
-NODE_ENV="${NODE_ENV:-production}" run_ts server/index.ts &
-APP_PID=$!
-PIDS+=("$APP_PID")
+NODE_ENV="${NODE_ENV:-production}" start_ts server/index.ts
+APP_PID="${PIDS[-1]}"
 wait_for_http "http://$HOST:$PORT/api/v1/health" 60 "$APP_PID" || die "The app did not answer on http://$HOST:$PORT (see the log above)."
 
 cat <<MSG

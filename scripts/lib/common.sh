@@ -64,3 +64,23 @@ wait_for_http() {
 
 load_env
 set_defaults
+
+# Child processes of a start script: stopped (TERM, then waited for) when the script exits or is interrupted.
+PIDS=()
+stop_children() {
+  trap - EXIT INT TERM
+  local pid
+  for pid in "${PIDS[@]}"; do kill -TERM "$pid" 2>/dev/null || true; done
+  for pid in "${PIDS[@]}"; do wait "$pid" 2>/dev/null || true; done
+}
+stop_children_on_exit() {
+  trap stop_children EXIT
+  trap 'exit 130' INT
+  trap 'exit 143' TERM
+}
+# Starts a TypeScript entry point in the background and records node's own pid in PIDS.
+# Note: `run_ts … &` would record the pid of a subshell, and stopping that leaves node running.
+start_ts() {
+  node --import tsx "$@" &
+  PIDS+=($!)
+}
