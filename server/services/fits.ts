@@ -26,8 +26,15 @@ export function toFitSummary(fit: Fit): FitSummary {
     launchSpeedMps: fit.launchSpeedMps ?? null,
     launchAngleDeg: fit.launchAngleDeg ?? null,
     carryM: fit.carryM ?? null,
+    cd: finiteOrNull(fit.result?.cd),
+    cdError: finiteOrNull(fit.result?.cdError),
+    standardCarryM: finiteOrNull(fit.result?.standardCarry),
     warnings: fit.warnings ?? [],
   };
+}
+
+function finiteOrNull(value: unknown): number | null {
+  return typeof value === 'number' && Number.isFinite(value) ? value : null;
 }
 
 export function toFitDto(fit: Fit): FitDto {

@@ -111,6 +111,11 @@ export interface FitSummary {
   launchSpeedMps: number | null;
   launchAngleDeg: number | null;
   carryM: number | null;
+  /** Fitted drag coefficient and its standard error (null for models without one). */
+  cd: number | null;
+  cdError: number | null;
+  /** Carry of the same launch in still ISO sea-level air, m. */
+  standardCarryM: number | null;
   warnings: FitWarning[];
 }
 

@@ -114,6 +114,12 @@ describe('calibration API', () => {
     // The generator launches at 14 m/s and 45° from 1 m (server/video/synth.ts defaults); exact centres, so close agreement.
     expect(flight.latestFit.launchSpeedMps).toBeCloseTo(14, 0);
     expect(flight.latestFit.launchAngleDeg).toBeCloseTo(45, 0);
+    // The summary carries the drag coefficient and the standard-conditions carry that the Flights list shows.
+    const full = (await fx.coach.get(clubPath(fx, `/flights/${flightId}/fits`))).body.data[0] as { result: { cd: number; cdError: number; standardCarry: number } };
+    expect(flight.latestFit.cd).toBe(full.result.cd);
+    expect(flight.latestFit.cdError).toBe(full.result.cdError);
+    expect(flight.latestFit.standardCarryM).toBe(full.result.standardCarry);
+    expect(flight.latestFit.cd).toBeGreaterThan(0);
 
     const refit = await fx.coach.post(clubPath(fx, `/flights/${flightId}/fit`), { model: 'drag' });
     expect(refit.status).toBe(202);

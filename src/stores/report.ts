@@ -1,0 +1,149 @@
+import { defineStore } from 'pinia';
+import { computed, ref, shallowRef, watch } from 'vue';
+import type { Session } from '@shared/schemas/session';
+import { FLIGHT_STATUS_LABELS, type FlightStatus } from '@shared/schemas/flight';
+import { listSessions } from '@/api/sessions';
+import { fetchActions, fetchFlightList, type Flight, type FlightAction } from '@/api/reports';
+import { ballName } from '@/components/trace/balls';
+import type { FlightCsvRow } from '@/components/report/flights-csv';
+import { loadErrorText } from '@/composables/use-loader';
+import { useClubStore } from './club';
+
+export interface FlightFilters {
+  sessionId: number | null;
+  athleteId: number | null;
+  action: string | null;
+  ballId: string | null;
+  status: FlightStatus | null;
+}
+
+/** One row of the Flights table: the flight, its session and the latest fit's figures. */
+export interface FlightRow extends FlightCsvRow {
+  flight: Flight;
+  status: FlightStatus;
+}
+
+/**
+ * The Flights list: every flight of the club in view (an athlete's own only), the filters (kept while the coach
+ * opens a report and comes back) and, per flight, the latest fit's summary (launch, carry, C_d, standard-conditions carry).
+ */
+export const useReportStore = defineStore('report', () => {
+  const club = useClubStore();
+  const flights = shallowRef<Flight[]>([]);
+  const sessions = shallowRef<Session[]>([]);
+  const actions = shallowRef<FlightAction[]>([]);
+  const loading = ref(false);
+  const error = ref<string | null>(null);
+  const filters = ref<FlightFilters>({ sessionId: null, athleteId: null, action: null, ballId: null, status: null });
+  let generation = 0;
+
+  const sessionById = computed(() => new Map(sessions.value.map((s) => [s.id, s])));
+  const actionLabel = computed(() => new Map(actions.value.map((a) => [a.key, a.label])));
+
+  function labelOfAction(key: string): string {
+    return actionLabel.value.get(key) ?? key.replace(/_/g, ' ');
+  }
+
+  const rows = computed<FlightRow[]>(() =>
+    flights.value.map((flight) => {
+      const session = sessionById.value.get(flight.sessionId) ?? null;
+      const fit = flight.latestFit;
+      return {
+        flight,
+        id: flight.id,
+        status: flight.status,
+        sessionDate: session?.date ?? null,
+        venue: session?.venue ?? null,
+        athleteName: flight.athleteName,
+        actionLabel: labelOfAction(flight.action),
+        ballName: ballName(flight.ballId),
+        statusLabel: FLIGHT_STATUS_LABELS[flight.status],
+        launchSpeedMps: fit?.launchSpeedMps ?? null,
+        launchAngleDeg: fit?.launchAngleDeg ?? null,
+        carryM: fit?.carryM ?? null,
+        standardCarryM: fit?.standardCarryM ?? null,
+        cd: fit?.cd ?? null,
+        cdError: fit?.cdError ?? null,
+        model: fit?.model ?? null,
+        fittedAt: fit?.createdAt ?? null,
+      };
+    }),
+  );
+
+  const filtered = computed<FlightRow[]>(() => {
+    const f = filters.value;
+    return rows.value.filter(
+      (r) =>
+        (f.sessionId === null || r.flight.sessionId === f.sessionId) &&
+        (f.athleteId === null || r.flight.athleteId === f.athleteId) &&
+        (f.action === null || r.flight.action === f.action) &&
+        (f.ballId === null || r.flight.ballId === f.ballId) &&
+        (f.status === null || r.flight.status === f.status),
+    );
+  });
+
+  /** Filter choices from what the list holds, so an athlete never sees another athlete's name. */
+  const athleteOptions = computed(() => {
+    const names = new Map<number, string>();
+    for (const f of flights.value) names.set(f.athleteId, f.athleteName);
+    return [...names].map(([value, label]) => ({ value, label })).sort((a, b) => a.label.localeCompare(b.label));
+  });
+  const actionOptions = computed(() => {
+    const keys = new Set(flights.value.map((f) => f.action));
+    return [...keys].map((value) => ({ value, label: labelOfAction(value) })).sort((a, b) => a.label.localeCompare(b.label));
+  });
+  const ballOptions = computed(() => {
+    const ids = new Set(flights.value.map((f) => f.ballId));
+    return [...ids].map((value) => ({ value, label: ballName(value) })).sort((a, b) => a.label.localeCompare(b.label));
+  });
+
+  async function load(): Promise<void> {
+    const clubId = club.clubId;
+    if (clubId === null) return;
+    const mine = ++generation;
+    loading.value = true;
+    error.value = null;
+    try {
+      const [list, sessionList, actionList] = await Promise.all([
+        fetchFlightList(clubId),
+        listSessions(clubId).then((a) => a.data).catch(() => [] as Session[]),
+        fetchActions(clubId).catch(() => [] as FlightAction[]),
+      ]);
+      if (mine !== generation) return;
+      flights.value = list.data;
+      sessions.value = sessionList;
+      actions.value = actionList;
+    } catch (cause) {
+      if (mine === generation) error.value = loadErrorText(cause);
+    } finally {
+      if (mine === generation) loading.value = false;
+    }
+  }
+
+  /** Puts a changed flight (e.g. just reviewed) into the list without a reload. */
+  function upsert(flight: Flight): void {
+    const exists = flights.value.some((f) => f.id === flight.id);
+    flights.value = exists ? flights.value.map((f) => (f.id === flight.id ? flight : f)) : [flight, ...flights.value];
+  }
+
+  function clearFilters(): void {
+    filters.value = { sessionId: null, athleteId: null, action: null, ballId: null, status: null };
+  }
+
+  // Another club in view: nothing of the previous club may stay.
+  watch(
+    () => club.clubId,
+    () => {
+      generation++;
+      flights.value = [];
+      sessions.value = [];
+      actions.value = [];
+      clearFilters();
+    },
+  );
+
+  return {
+    flights, sessions, actions, loading, error, filters, rows, filtered, sessionById,
+    athleteOptions, actionOptions, ballOptions, labelOfAction, load, upsert, clearFilters,
+  };
+});
