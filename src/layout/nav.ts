@@ -22,8 +22,10 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Clips', icon: 'pi pi-video', routeName: 'clips', roles: EVERYONE },
   // -- end sessions, clips (tracing helper) --
   // -- flights, flight report (report helper) --
+  { label: 'Flights', icon: 'pi pi-chart-line', routeName: 'flights', roles: EVERYONE },
   // -- end flights, flight report (report helper) --
   // -- planner (planner helper) --
+  { label: 'Planner', icon: 'pi pi-sliders-h', routeName: 'planner', roles: EVERYONE },
   // -- end planner (planner helper) --
   { label: 'Squad', icon: 'pi pi-users', routeName: 'squad', roles: STAFF },
   { label: 'Club', icon: 'pi pi-building', routeName: 'club', roles: ADMIN },

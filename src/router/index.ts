@@ -87,8 +87,27 @@ const routes: RouteRecordRaw[] = [
       },
       // -- end sessions, clips, trace routes (tracing helper) --
       // -- flights, flight report routes (report helper) --
+      {
+        path: 'flights',
+        name: 'flights',
+        component: () => import('@/views/FlightsView.vue'),
+        meta: { title: 'Flights' },
+      },
+      {
+        path: 'flights/:flightId(\\d+)',
+        name: 'flight-report',
+        component: () => import('@/views/FlightReportView.vue'),
+        props: true,
+        meta: { title: 'Flight report' },
+      },
       // -- end flights, flight report routes (report helper) --
       // -- planner routes (planner helper) --
+      {
+        path: 'planner',
+        name: 'planner',
+        component: () => import('@/views/PlannerView.vue'),
+        meta: { title: 'Planner' },
+      },
       // -- end planner routes (planner helper) --
       {
         path: ':pathMatch(.*)*',
