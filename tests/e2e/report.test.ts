@@ -106,6 +106,15 @@ describe('Flights and the Flight report', () => {
       await page.locator('[data-testid="flight-report"] [data-testid="flight-status"][data-status="reviewed"]').waitFor();
       await expect.poll(() => action.textContent()).toMatch(/Open trace/);
 
+      // The report hands its flight to the Planner.
+      const reportPath = new URL(page.url()).pathname;
+      const flightId = reportPath.split('/').pop();
+      await page.getByTestId('open-planner').click();
+      await page.waitForURL((url) => url.pathname === '/planner');
+      expect(new URL(page.url()).searchParams.get('flight')).toBe(flightId);
+      await page.goBack();
+      await page.getByTestId('flight-report').waitFor();
+
       // Back in the list, the reviewed flight has left the "fitted" filter.
       await page.getByTestId('rail-flights').click();
       await page.getByTestId('flights-table').waitFor();
