@@ -140,7 +140,8 @@ describe('Flights and the Flight report', () => {
       await page.locator('[data-testid="flights-table"] [data-testid="flight-link"]').first().click();
       await page.locator('[data-testid="flight-report"]').waitFor();
       await expect.poll(() => page.getByTestId('primary-action').textContent()).toMatch(/Open trace/);
-      expect(await page.getByTestId('report-cautions').textContent()).toMatch(/Young athlete/);
+      // The athlete's profile (birth year) arrives after the flight: wait for the caution it brings.
+      await expect.poll(() => page.getByTestId('report-cautions').textContent()).toMatch(/Young athlete/);
       await screenshot(page, 'report-athlete');
 
       await page.goto(`/flights/${otherAthletesFlightId}`);
