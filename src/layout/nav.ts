@@ -24,6 +24,8 @@ export const NAV_ITEMS: readonly NavItem[] = [
   // -- flights, flight report (report helper) --
   { label: 'Flights', icon: 'pi pi-chart-line', routeName: 'flights', roles: EVERYONE },
   // -- end flights, flight report (report helper) --
+  // -- progress (progress helper) --
+  // -- end progress (progress helper) --
   // -- planner (planner helper) --
   { label: 'Planner', icon: 'pi pi-sliders-h', routeName: 'planner', roles: EVERYONE },
   // -- end planner (planner helper) --

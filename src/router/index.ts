@@ -101,6 +101,8 @@ const routes: RouteRecordRaw[] = [
         meta: { title: 'Flight report' },
       },
       // -- end flights, flight report routes (report helper) --
+      // -- session report, progress routes (progress helper) --
+      // -- end session report, progress routes (progress helper) --
       // -- planner routes (planner helper) --
       {
         path: 'planner',
