@@ -25,6 +25,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Flights', icon: 'pi pi-chart-line', routeName: 'flights', roles: EVERYONE },
   // -- end flights, flight report (report helper) --
   // -- progress (progress helper) --
+  { label: 'Progress', icon: 'pi pi-chart-bar', routeName: 'progress', roles: EVERYONE },
   // -- end progress (progress helper) --
   // -- planner (planner helper) --
   { label: 'Planner', icon: 'pi pi-sliders-h', routeName: 'planner', roles: EVERYONE },

@@ -102,6 +102,19 @@ const routes: RouteRecordRaw[] = [
       },
       // -- end flights, flight report routes (report helper) --
       // -- session report, progress routes (progress helper) --
+      {
+        path: 'sessions/:sessionId(\\d+)/report',
+        name: 'session-report',
+        component: () => import('@/views/SessionReportView.vue'),
+        props: true,
+        meta: { title: 'Session report' },
+      },
+      {
+        path: 'progress',
+        name: 'progress',
+        component: () => import('@/views/ProgressView.vue'),
+        meta: { title: 'Progress' },
+      },
       // -- end session report, progress routes (progress helper) --
       // -- planner routes (planner helper) --
       {

@@ -1,0 +1,100 @@
+import { defineStore } from 'pinia';
+import { computed, ref, shallowRef, watch } from 'vue';
+import { fetchProgress, fetchProgressAthletes, type AthleteProfileSummary, type Flight, type FlightAction, type Session } from '@/api/progress';
+import { measuredFlights, progressSummary, type MeasuredFlight } from '@/components/progress/progress-stats';
+import { loadErrorText } from '@/composables/use-loader';
+import { useClubStore } from './club';
+
+/**
+ * Progress: the athlete in view (a coach or admin picks one; an athlete always sees her own), her flights and the
+ * sessions that date them. The pick is kept while the coach opens a Flight report and comes back.
+ */
+export const useProgressStore = defineStore('progress', () => {
+  const club = useClubStore();
+  const athletes = shallowRef<AthleteProfileSummary[]>([]);
+  const athleteId = ref<number | null>(null);
+  const flights = shallowRef<Flight[]>([]);
+  const sessions = shallowRef<Session[]>([]);
+  const actions = shallowRef<FlightAction[]>([]);
+  const loading = ref(false);
+  const error = ref<string | null>(null);
+  /** True once flights of the current pick have arrived (distinguishes "none yet" from "not loaded"). */
+  const loaded = ref(false);
+  let generation = 0;
+
+  const isStaff = computed(() => club.hasRole(['admin', 'coach']));
+  const sessionDate = computed(() => new Map(sessions.value.map((s) => [s.id, s.date])));
+  const measured = computed<MeasuredFlight[]>(() => measuredFlights(flights.value, (id) => sessionDate.value.get(id) ?? null));
+  const summary = computed(() => progressSummary(measured.value));
+  const athleteOptions = computed(() =>
+    athletes.value.map((a) => ({ value: a.id, label: a.displayName })).sort((a, b) => a.label.localeCompare(b.label)),
+  );
+
+  function labelOfAction(key: string): string {
+    return actions.value.find((a) => a.key === key)?.label ?? key.replace(/_/g, ' ');
+  }
+
+  /** Loads the athletes a coach can pick (an athlete has no picker). */
+  async function loadAthletes(): Promise<void> {
+    const clubId = club.clubId;
+    if (clubId === null || !isStaff.value) return;
+    try {
+      athletes.value = await fetchProgressAthletes(clubId);
+    } catch (cause) {
+      error.value = loadErrorText(cause);
+    }
+  }
+
+  /** Loads the flights of the athlete in view: the pick for staff, the signed-in athlete herself otherwise. */
+  async function load(): Promise<void> {
+    const clubId = club.clubId;
+    if (clubId === null) return;
+    const mine = ++generation;
+    if (isStaff.value && athleteId.value === null) {
+      flights.value = [];
+      loaded.value = false;
+      return;
+    }
+    loading.value = true;
+    error.value = null;
+    try {
+      // Note: an athlete's list is scoped by the server; passing her id too would only repeat it.
+      const data = await fetchProgress(clubId, isStaff.value ? athleteId.value : null);
+      if (mine !== generation) return;
+      flights.value = data.flights;
+      sessions.value = data.sessions;
+      actions.value = data.actions;
+      loaded.value = true;
+    } catch (cause) {
+      if (mine === generation) error.value = loadErrorText(cause);
+    } finally {
+      if (mine === generation) loading.value = false;
+    }
+  }
+
+  async function pick(id: number | null): Promise<void> {
+    if (athleteId.value === id && loaded.value) return;
+    athleteId.value = id;
+    await load();
+  }
+
+  // Another club in view: nothing of the previous club may stay.
+  watch(
+    () => club.clubId,
+    () => {
+      generation++;
+      athletes.value = [];
+      athleteId.value = null;
+      flights.value = [];
+      sessions.value = [];
+      actions.value = [];
+      loaded.value = false;
+      error.value = null;
+    },
+  );
+
+  return {
+    athletes, athleteId, flights, sessions, actions, loading, error, loaded, isStaff, measured, summary, athleteOptions,
+    labelOfAction, loadAthletes, load, pick,
+  };
+});
