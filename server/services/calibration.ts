@@ -16,8 +16,8 @@ import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { Calibration, type Clip } from '../models';
-import { findVisibleClip } from './clips';
-import { enqueueRefits } from './fits';
+import { enqueueRefits } from './refits';
+import { findVisibleClip } from './visibility';
 
 export function toCalibrationDto(cal: Calibration): CalibrationDto {
   const frame = computeCalibration(cal.input);
