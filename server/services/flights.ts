@@ -3,8 +3,11 @@
  * only their own flights (`athleteProfileId`, as `scopeAthlete()` gives it).
  */
 import { Op, QueryTypes, type Transaction } from 'sequelize';
+import type { z } from 'zod';
 import {
   DEFAULT_FLIGHT_ACTIONS,
+  type flightActionInputSchema,
+  type flightActionPatchSchema,
   type Flight as FlightDto,
   type FlightAction as FlightActionDto,
   type FlightDetail,
@@ -60,7 +63,7 @@ function keyFromLabel(label: string): string {
   return key || 'action';
 }
 
-export async function createAction(club: ClubContext, input: { key?: string; label: string }): Promise<FlightActionDto> {
+export async function createAction(club: ClubContext, input: z.output<typeof flightActionInputSchema>): Promise<FlightActionDto> {
   await ensureDefaultActions(club.id);
   const key = input.key ?? keyFromLabel(input.label);
   const existing = await FlightAction.findOne({ where: { clubId: club.id, key } });
@@ -80,7 +83,7 @@ async function findAction(club: ClubContext, actionId: number): Promise<FlightAc
   return action;
 }
 
-export async function patchAction(club: ClubContext, actionId: number, patch: { label?: string; archived?: boolean }): Promise<FlightActionDto> {
+export async function patchAction(club: ClubContext, actionId: number, patch: z.output<typeof flightActionPatchSchema>): Promise<FlightActionDto> {
   const action = await findAction(club, actionId);
   if (patch.label !== undefined) action.label = patch.label;
   if (patch.archived !== undefined) action.archived = patch.archived;
