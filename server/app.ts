@@ -18,10 +18,13 @@ import { sessionMiddleware } from './http/session';
 import './http/types';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
+import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
+import { flightsRouter } from './routes/flights';
 import { healthRouter } from './routes/health';
+import { jobsRouter } from './routes/jobs';
 import { membersRouter } from './routes/members';
-import { mountClipsApi } from './routes/clips'; // clips helper: sessions, clips, flights, jobs
+import { sessionsRouter } from './routes/sessions';
 
 export interface AppOptions {
   /** Overrides of the sign-in limit (failed attempts per IP and e-mail); tests lower it. */
@@ -96,10 +99,10 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
-
-  // -- sessions, clips, flights, jobs (clips helper) --
-  mountClipsApi(api);
-  // -- end sessions, clips, flights, jobs --
+  api.use(sessionsRouter);
+  api.use(clipsRouter);
+  api.use(flightsRouter);
+  api.use(jobsRouter);
 
   options.extraApiRoutes?.(api);
   api.use(apiNotFound);

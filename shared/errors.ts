@@ -34,3 +34,19 @@ export type FieldErrors = Record<string, string>;
 export interface ApiErrorBody {
   error: { code: ErrorCode; message: string; fields?: FieldErrors };
 }
+
+/**
+ * Codes of a failed job (`JobFailure(message, code)` on the server): why a background job stopped, for
+ * the log and the failure handlers. The message stored on the job is the sentence the coach reads.
+ */
+export const JOB_FAILURE_CODES = [
+  'JOB_FAILED',
+  'CLIP_GONE',
+  'CLIP_SOURCE_MISSING',
+  'FLIGHT_GONE',
+  'CALIBRATION_REQUIRED',
+  'UNKNOWN_BALL',
+  'BAD_OPTION',
+] as const;
+
+export type JobFailureCode = (typeof JOB_FAILURE_CODES)[number];

@@ -1,4 +1,5 @@
 /** What a job handler is given and what it provides. */
+import type { JobFailureCode } from '../../shared/errors';
 import type { JobType } from '../../shared/schemas/clip';
 import type { Job } from '../models';
 
@@ -23,12 +24,13 @@ export interface JobHandler {
 
 /**
  * A failure whose message is meant for the coach (bad input, a clip that cannot be read, a lost ball).
- * Other errors are logged with their stack and reported with a generic sentence.
+ * Other errors are logged with their stack and reported with a generic sentence. `code` is one of
+ * `JOB_FAILURE_CODES` (shared/errors.ts).
  */
 export class JobFailure extends Error {
   constructor(
     message: string,
-    readonly code: string = 'JOB_FAILED',
+    readonly code: JobFailureCode = 'JOB_FAILED',
   ) {
     super(message);
     this.name = 'JobFailure';

@@ -1,8 +1,10 @@
 /**
  * `validate(schema)`: parses the JSON body with a zod schema from `shared/schemas/` and puts the parsed
  * (trimmed, defaulted) value in `req.body`; otherwise 400 VALIDATION_FAILED with one message per field.
+ * The handler after it in the same route sees `req.body` typed as the schema's output.
  */
 import type { RequestHandler } from 'express';
+import type { ParamsDictionary } from 'express-serve-static-core';
 import type { z } from 'zod';
 import type { FieldErrors } from '../../shared/errors';
 import { ApiError } from '../http/errors';
@@ -30,7 +32,8 @@ export function validationError(error: z.ZodError): ApiError {
   return new ApiError('VALIDATION_FAILED', message, fields);
 }
 
-export function validate<S extends z.ZodType>(schema: S): RequestHandler {
+/** Middleware that replaces `req.body` by its parse with `schema`; its type carries the parsed body to the next handler. */
+export function validate<S extends z.ZodType>(schema: S): RequestHandler<ParamsDictionary, unknown, z.output<S>> {
   return (req, _res, next) => {
     const body: unknown = req.body === undefined ? {} : req.body;
     const result = schema.safeParse(body);

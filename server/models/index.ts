@@ -4,14 +4,30 @@
  */
 import { sequelize } from '../db';
 import { AthleteProfile, initAthleteProfile } from './athlete-profile';
+import { Calibration, initCalibration } from './calibration';
+import { Clip, initClip } from './clip';
 import { Club, initClub } from './club';
+import { Fit, initFit } from './fit';
+import { Flight, initFlight } from './flight';
+import { FlightAction, initFlightAction } from './flight-action';
+import { Job, initJob } from './job';
 import { Membership, initMembership } from './membership';
+import { Session, initSession } from './session';
+import { TrackPoint, initTrackPoint } from './track-point';
 import { User, initUser } from './user';
 
 initUser(sequelize);
 initClub(sequelize);
 initMembership(sequelize);
 initAthleteProfile(sequelize);
+initSession(sequelize);
+initClip(sequelize);
+initCalibration(sequelize);
+initFlightAction(sequelize);
+initFlight(sequelize);
+initTrackPoint(sequelize);
+initFit(sequelize);
+initJob(sequelize);
 
 // Foreign keys are `<model>_id` columns; deleting a club removes its memberships and profiles (see migrations).
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
@@ -22,25 +38,6 @@ Club.hasMany(AthleteProfile, { foreignKey: 'clubId', as: 'athleteProfiles' });
 AthleteProfile.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
 User.hasMany(AthleteProfile, { foreignKey: 'userId', as: 'athleteProfiles' });
 AthleteProfile.belongsTo(User, { foreignKey: 'userId', as: 'user' });
-
-// -- sessions, clips, flights, jobs (clips helper) --
-import { Calibration, initCalibration } from './calibration';
-import { Clip, initClip } from './clip';
-import { Fit, initFit } from './fit';
-import { Flight, initFlight } from './flight';
-import { FlightAction, initFlightAction } from './flight-action';
-import { Job, initJob } from './job';
-import { Session, initSession } from './session';
-import { TrackPoint, initTrackPoint } from './track-point';
-
-initSession(sequelize);
-initClip(sequelize);
-initCalibration(sequelize);
-initFlightAction(sequelize);
-initFlight(sequelize);
-initTrackPoint(sequelize);
-initFit(sequelize);
-initJob(sequelize);
 
 // Deleting a session removes its clips, their flights, points, fits, calibrations and jobs (ON DELETE CASCADE in the migrations);
 // the service removes the stored files after the commit.
@@ -61,7 +58,4 @@ Fit.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 Club.hasMany(FlightAction, { foreignKey: 'clubId', as: 'flightActions' });
 Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
 
-export { Calibration, Clip, Fit, Flight, FlightAction, Job, Session, TrackPoint };
-// -- end sessions, clips, flights, jobs --
-
-export { sequelize, AthleteProfile, Club, Membership, User };
+export { sequelize, AthleteProfile, Calibration, Clip, Club, Fit, Flight, FlightAction, Job, Membership, Session, TrackPoint, User };

@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import { athleteCreateSchema, athleteUpdateSchema, type AthleteCreateBody, type AthleteUpdateBody } from '../../shared/schemas/club';
+import { athleteCreateSchema, athleteUpdateSchema } from '../../shared/schemas/club';
 import { parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate } from '../middleware/validate';
@@ -18,9 +18,9 @@ athletesRouter.get('/clubs/:clubId/athletes/:athleteId', clubAccess(...ANY_ROLE)
 });
 
 athletesRouter.post('/clubs/:clubId/athletes', clubAccess('admin', 'coach'), validate(athleteCreateSchema), async (req, res) => {
-  res.status(201).json({ data: await createAthlete(clubOf(req), req.body as AthleteCreateBody) });
+  res.status(201).json({ data: await createAthlete(clubOf(req), req.body) });
 });
 
 athletesRouter.patch('/clubs/:clubId/athletes/:athleteId', clubAccess('admin', 'coach'), validate(athleteUpdateSchema), async (req, res) => {
-  res.json({ data: await updateAthlete(clubOf(req), parseId(req.params.athleteId, 'athlete'), req.body as AthleteUpdateBody) });
+  res.json({ data: await updateAthlete(clubOf(req), parseId(req.params.athleteId, 'athlete'), req.body) });
 });

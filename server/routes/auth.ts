@@ -5,7 +5,7 @@
  */
 import { Router, type Request, type Response, type NextFunction } from 'express';
 import passport from 'passport';
-import { signInSchema, signUpSchema, type SignUpBody } from '../../shared/schemas/auth';
+import { signInSchema, signUpSchema } from '../../shared/schemas/auth';
 import { config } from '../config';
 import { log } from '../logger';
 import { csrfToken } from '../http/csrf';
@@ -56,7 +56,7 @@ export function authRouter(options: AuthRouterOptions): Router {
   });
 
   router.post('/auth/signup', publicRoute, signupLimiter(options.signupLimit), validate(signUpSchema), async (req, res) => {
-    const user = await signUp(req.body as SignUpBody);
+    const user = await signUp(req.body);
     await logIn(req, user);
     res.status(201).json({ data: await meOrThrow(user.id) });
   });

@@ -1,23 +1,18 @@
 import { Router, type Request, type Response } from 'express';
 import { rm } from 'node:fs/promises';
 import multer from 'multer';
-import { calibrationInputSchema, type CalibrationInput } from '../../shared/schemas/calibration';
-import { clipListQuerySchema, clipPatchSchema, clipUploadFieldsSchema, type ClipPatch } from '../../shared/schemas/clip';
+import { calibrationInputSchema } from '../../shared/schemas/calibration';
+import { clipListQuerySchema, clipPatchSchema, clipUploadFieldsSchema } from '../../shared/schemas/clip';
 import { MAX_TRACK_POINTS } from '../../shared/schemas/track';
 import { config } from '../config';
+import { confirmed } from '../http/confirm';
 import { ApiError, parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
 import { deleteCalibration, getCalibration, setCalibration } from '../services/calibration';
-import { acceptUpload, countClips, deleteClip, frameImage, getClip, listClips, listSessionClips, patchClip, stripImage, tooLarge, type UploadedFile } from '../services/clips';
+import { acceptUpload, deleteClip, frameImage, getClip, listClips, listSessionClips, patchClip, stripImage, tooLarge, type UploadedFile } from '../services/clips';
+import { findVisibleSession } from '../services/visibility';
 import { storage } from '../storage';
-import { Clip } from '../models';
-import { registerOverviewCount } from '../services/clubs';
-import { countFlights } from '../services/flights';
-import { countSessions, findVisibleSession } from '../services/sessions';
-import { flightsRouter } from './flights';
-import { jobsRouter } from './jobs';
-import { confirmed, sessionsRouter } from './sessions';
 
 /** Most files in one frame-set upload. */
 const MAX_FRAMES = MAX_TRACK_POINTS;
@@ -107,7 +102,7 @@ clipsRouter.get('/clubs/:clubId/clips/:clipId', clubAccess(...ANY_ROLE), async (
 });
 
 clipsRouter.patch('/clubs/:clubId/clips/:clipId', clubAccess('admin', 'coach'), validate(clipPatchSchema), async (req, res) => {
-  res.json({ data: await patchClip(clubOf(req), parseId(req.params.clipId, 'clip'), req.body as ClipPatch) });
+  res.json({ data: await patchClip(clubOf(req), parseId(req.params.clipId, 'clip'), req.body) });
 });
 
 clipsRouter.delete('/clubs/:clubId/clips/:clipId', clubAccess('admin', 'coach'), async (req, res) => {
@@ -143,26 +138,10 @@ clipsRouter.get('/clubs/:clubId/clips/:clipId/calibration', clubAccess(...ANY_RO
 });
 
 clipsRouter.put('/clubs/:clubId/clips/:clipId/calibration', clubAccess('admin', 'coach'), validate(calibrationInputSchema), async (req, res) => {
-  res.json({ data: await setCalibration(clubOf(req), parseId(req.params.clipId, 'clip'), req.body as CalibrationInput) });
+  res.json({ data: await setCalibration(clubOf(req), parseId(req.params.clipId, 'clip'), req.body) });
 });
 
 clipsRouter.delete('/clubs/:clubId/clips/:clipId/calibration', clubAccess('admin', 'coach'), async (req, res) => {
   await deleteCalibration(clubOf(req), parseId(req.params.clipId, 'clip'));
   res.status(204).end();
 });
-
-/**
- * Mounts the sessions, clips, flights and jobs routers on the API router and registers their overview
- * counts (server/app.ts calls this once, inside its clips block).
- */
-export function mountClipsApi(api: Router): void {
-  api.use(sessionsRouter);
-  api.use(clipsRouter);
-  api.use(flightsRouter);
-  api.use(jobsRouter);
-  registerOverviewCount('sessions', countSessions);
-  registerOverviewCount('clips', countClips);
-  registerOverviewCount('flights', (club) => countFlights(club));
-  registerOverviewCount('flightsNeedingAttention', (club) => countFlights(club, 'needs_attention'));
-  registerOverviewCount('clipsProcessing', async (club) => (club.role === 'athlete' ? 0 : Clip.count({ where: { clubId: club.id, status: 'processing' } })));
-}

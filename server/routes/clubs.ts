@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import { clubUpdateSchema, type ClubUpdateBody } from '../../shared/schemas/club';
+import { clubUpdateSchema } from '../../shared/schemas/club';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate } from '../middleware/validate';
 import { getClub, getOverview, updateClub } from '../services/clubs';
@@ -16,5 +16,5 @@ clubsRouter.get('/clubs/:clubId', clubAccess(...ANY_ROLE), async (req, res) => {
 });
 
 clubsRouter.patch('/clubs/:clubId', clubAccess('admin'), validate(clubUpdateSchema), async (req, res) => {
-  res.json({ data: await updateClub(clubOf(req).id, req.body as ClubUpdateBody) });
+  res.json({ data: await updateClub(clubOf(req).id, req.body) });
 });

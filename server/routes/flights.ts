@@ -6,10 +6,8 @@ import {
   flightInputSchema,
   flightListQuerySchema,
   flightPatchSchema,
-  type FlightInput,
-  type FlightPatch,
 } from '../../shared/schemas/flight';
-import { followBodySchema, trackImportBodySchema, trackPointsBodySchema, type FollowBody, type TrackPointsBody } from '../../shared/schemas/track';
+import { followBodySchema, trackImportBodySchema, trackPointsBodySchema } from '../../shared/schemas/track';
 import { parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
@@ -39,11 +37,11 @@ flightsRouter.get('/clubs/:clubId/flight-actions', clubAccess(...ANY_ROLE), asyn
 });
 
 flightsRouter.post('/clubs/:clubId/flight-actions', clubAccess('admin', 'coach'), validate(flightActionInputSchema), async (req, res) => {
-  res.status(201).json({ data: await createAction(clubOf(req), req.body as { key?: string; label: string }) });
+  res.status(201).json({ data: await createAction(clubOf(req), req.body) });
 });
 
 flightsRouter.patch('/clubs/:clubId/flight-actions/:actionId', clubAccess('admin', 'coach'), validate(flightActionPatchSchema), async (req, res) => {
-  res.json({ data: await patchAction(clubOf(req), parseId(req.params.actionId, 'action'), req.body as { label?: string; archived?: boolean }) });
+  res.json({ data: await patchAction(clubOf(req), parseId(req.params.actionId, 'action'), req.body) });
 });
 
 flightsRouter.delete('/clubs/:clubId/flight-actions/:actionId', clubAccess('admin', 'coach'), async (req, res) => {
@@ -64,7 +62,7 @@ flightsRouter.get('/clubs/:clubId/clips/:clipId/flights', clubAccess(...ANY_ROLE
 });
 
 flightsRouter.post('/clubs/:clubId/clips/:clipId/flights', clubAccess('admin', 'coach'), validate(flightInputSchema), async (req, res) => {
-  res.status(201).json({ data: await createFlight(clubOf(req), parseId(req.params.clipId, 'clip'), req.body as FlightInput) });
+  res.status(201).json({ data: await createFlight(clubOf(req), parseId(req.params.clipId, 'clip'), req.body) });
 });
 
 flightsRouter.get('/clubs/:clubId/flights/:flightId', clubAccess(...ANY_ROLE), async (req, res) => {
@@ -72,7 +70,7 @@ flightsRouter.get('/clubs/:clubId/flights/:flightId', clubAccess(...ANY_ROLE), a
 });
 
 flightsRouter.patch('/clubs/:clubId/flights/:flightId', clubAccess('admin', 'coach'), validate(flightPatchSchema), async (req, res) => {
-  res.json({ data: await patchFlight(clubOf(req), parseId(req.params.flightId, 'flight'), req.body as FlightPatch) });
+  res.json({ data: await patchFlight(clubOf(req), parseId(req.params.flightId, 'flight'), req.body) });
 });
 
 flightsRouter.delete('/clubs/:clubId/flights/:flightId', clubAccess('admin', 'coach'), async (req, res) => {
@@ -85,11 +83,11 @@ flightsRouter.get('/clubs/:clubId/flights/:flightId/points', clubAccess(...ANY_R
 });
 
 flightsRouter.put('/clubs/:clubId/flights/:flightId/points', clubAccess('admin', 'coach'), validate(trackPointsBodySchema), async (req, res) => {
-  res.json({ data: await replacePoints(clubOf(req), parseId(req.params.flightId, 'flight'), (req.body as TrackPointsBody).points) });
+  res.json({ data: await replacePoints(clubOf(req), parseId(req.params.flightId, 'flight'), req.body.points) });
 });
 
 flightsRouter.post('/clubs/:clubId/flights/:flightId/follow', clubAccess('admin', 'coach'), validate(followBodySchema), async (req, res) => {
-  res.status(202).json({ data: await startFollow(clubOf(req), parseId(req.params.flightId, 'flight'), req.body as FollowBody) });
+  res.status(202).json({ data: await startFollow(clubOf(req), parseId(req.params.flightId, 'flight'), req.body) });
 });
 
 // A raw `text/csv` body is read here (up to 5 MB); JSON `{ csv }` comes through the API's JSON parser.
@@ -113,7 +111,7 @@ flightsRouter.get('/clubs/:clubId/flights/:flightId/track.csv', clubAccess(...AN
 });
 
 flightsRouter.post('/clubs/:clubId/flights/:flightId/fit', clubAccess('admin', 'coach'), validate(fitRequestSchema), async (req, res) => {
-  res.status(202).json({ data: await requestFit(clubOf(req), parseId(req.params.flightId, 'flight'), (req.body as { model?: string }).model) });
+  res.status(202).json({ data: await requestFit(clubOf(req), parseId(req.params.flightId, 'flight'), req.body.model) });
 });
 
 flightsRouter.get('/clubs/:clubId/flights/:flightId/fits', clubAccess(...ANY_ROLE), async (req, res) => {

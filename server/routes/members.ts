@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import { memberRoleSchema, type MemberRoleBody } from '../../shared/schemas/club';
+import { memberRoleSchema } from '../../shared/schemas/club';
 import { parseId } from '../http/errors';
 import { clubAccess, clubOf } from '../middleware/authorize';
 import { validate } from '../middleware/validate';
@@ -15,5 +15,5 @@ membersRouter.get('/clubs/:clubId/members', clubAccess('admin', 'coach'), async 
 
 membersRouter.patch('/clubs/:clubId/members/:memberId', clubAccess('admin'), validate(memberRoleSchema), async (req, res) => {
   const memberId = parseId(req.params.memberId, 'member');
-  res.json({ data: await changeMemberRole(clubOf(req).id, memberId, (req.body as MemberRoleBody).role) });
+  res.json({ data: await changeMemberRole(clubOf(req).id, memberId, req.body.role) });
 });

@@ -1,17 +1,10 @@
-import { Router, type Request } from 'express';
-import { sessionInputSchema, sessionListQuerySchema, sessionPatchSchema, type SessionInput, type SessionPatch } from '../../shared/schemas/session';
+import { Router } from 'express';
+import { sessionInputSchema, sessionListQuerySchema, sessionPatchSchema } from '../../shared/schemas/session';
+import { confirmed } from '../http/confirm';
 import { parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
-import { enqueueRefits } from '../services/fits';
 import { createSession, deleteSession, getSession, listSessions, updateSession } from '../services/sessions';
-
-/** `?confirm=true` (or `{ confirm: true }` in the body) confirms deleting something that holds flights. */
-export function confirmed(req: Request): boolean {
-  const q = req.query.confirm;
-  const b = (req.body as { confirm?: unknown } | undefined)?.confirm;
-  return q === 'true' || q === '1' || b === true;
-}
 
 /** Sessions: admins and coaches manage them; an athlete reads only sessions holding their own flights. */
 export const sessionsRouter = Router();
@@ -24,7 +17,7 @@ sessionsRouter.get('/clubs/:clubId/sessions', clubAccess(...ANY_ROLE), async (re
 });
 
 sessionsRouter.post('/clubs/:clubId/sessions', clubAccess('admin', 'coach'), validate(sessionInputSchema), async (req, res) => {
-  res.status(201).json({ data: await createSession(clubOf(req), req.body as SessionInput) });
+  res.status(201).json({ data: await createSession(clubOf(req), req.body) });
 });
 
 sessionsRouter.get('/clubs/:clubId/sessions/:sessionId', clubAccess(...ANY_ROLE), async (req, res) => {
@@ -32,11 +25,7 @@ sessionsRouter.get('/clubs/:clubId/sessions/:sessionId', clubAccess(...ANY_ROLE)
 });
 
 sessionsRouter.patch('/clubs/:clubId/sessions/:sessionId', clubAccess('admin', 'coach'), validate(sessionPatchSchema), async (req, res) => {
-  const club = clubOf(req);
-  const { session, conditionsChanged } = await updateSession(club, parseId(req.params.sessionId, 'session'), req.body as SessionPatch);
-  // New air means new fits for the session's fitted flights.
-  if (conditionsChanged) await enqueueRefits(club.id, { sessionId: session.id, onlyFitted: true });
-  res.json({ data: session });
+  res.json({ data: await updateSession(clubOf(req), parseId(req.params.sessionId, 'session'), req.body) });
 });
 
 sessionsRouter.delete('/clubs/:clubId/sessions/:sessionId', clubAccess('admin', 'coach'), async (req, res) => {

@@ -15,11 +15,12 @@ import { readdir, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Transaction } from 'sequelize';
 import { BALLS } from '../../shared/physics';
-import { ballCheck, calibrationInputSchema, computeCalibration } from '../../shared/schemas/calibration';
+import { calibrationInputSchema } from '../../shared/schemas/calibration';
 import { config } from '../config';
 import { enqueue } from '../jobs/queue';
 import { log } from '../logger';
 import { AthleteProfile, Calibration, Clip, Club, Flight, FlightAction, Membership, Session, TrackPoint, User } from '../models';
+import { calibrationValues } from '../services/calibration';
 import { ensureDefaultActions } from '../services/flights';
 import { clipKeys, LocalDiskStorage, storage } from '../storage';
 import { DEMO_CLUB_NAME, DEMO_USERS } from './0001-demo-club';
@@ -147,22 +148,9 @@ async function insertSession(
     clip.sourceKey = `${clipKeys.source(clubId, clip.id)}/video.mp4`;
     await clip.save({ transaction });
 
+    if (!BALLS[flight.ballId]) throw new Error(`Demo flight "${flight.key}" names the ball "${flight.ballId}", which is not in the catalogue.`);
     const input = calibrationInputSchema.parse(r.calibration);
-    const frame = computeCalibration(input);
-    const spec = BALLS[flight.ballId];
-    if (!spec) throw new Error(`Demo flight "${flight.key}" names the ball "${flight.ballId}", which is not in the catalogue.`);
-    await Calibration.create(
-      {
-        clubId,
-        clipId: clip.id,
-        input,
-        metresPerPixel: frame.metresPerPixel,
-        levelAngleDeg: frame.levelAngleDeg,
-        ballCheck: input.ball ? ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, spec.diameterM.nominal) : null,
-        supersededAt: null,
-      },
-      { transaction },
-    );
+    await Calibration.create({ clubId, clipId: clip.id, input, ...calibrationValues(input), supersededAt: null }, { transaction });
 
     const row = await Flight.create(
       {

@@ -7,6 +7,7 @@ import { BALLS } from '../../shared/physics';
 import {
   ballCheck,
   computeCalibration,
+  type BallCheck,
   type Calibration as CalibrationDto,
   type CalibrationFrame,
   type CalibrationInput,
@@ -16,8 +17,8 @@ import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { Calibration, type Clip } from '../models';
-import { findVisibleClip } from './clips';
-import { enqueueRefits } from './fits';
+import { enqueueRefits } from './refits';
+import { findVisibleClip } from './visibility';
 
 export function toCalibrationDto(cal: Calibration): CalibrationDto {
   const frame = computeCalibration(cal.input);
@@ -49,6 +50,25 @@ export async function currentCalibration(clipId: number, transaction?: Transacti
 /** The mapping of a stored calibration. */
 export function frameOf(cal: Calibration): CalibrationFrame {
   return computeCalibration(cal.input);
+}
+
+/**
+ * What is stored beside a calibration's input: metres per pixel, the level angle and the ball's size check.
+ * @throws ApiError VALIDATION_FAILED when the size check names a ball that is not in the catalogue
+ */
+export function calibrationValues(input: CalibrationInput): { metresPerPixel: number; levelAngleDeg: number; ballCheck: BallCheck | null } {
+  const frame = computeCalibration(input);
+  let check: BallCheck | null = null;
+  if (input.ball) {
+    const spec = BALLS[input.ball.ballId];
+    if (!spec) {
+      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue.`, {
+        'ball.ballId': 'Pick a ball from the catalogue.',
+      });
+    }
+    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, spec.diameterM.nominal);
+  }
+  return { metresPerPixel: frame.metresPerPixel, levelAngleDeg: frame.levelAngleDeg, ballCheck: check };
 }
 
 /** Points must lie in the frame (a calibration outside the picture is a misclick). */
@@ -83,29 +103,11 @@ export async function getCalibration(club: ClubContext, clipId: number): Promise
 export async function setCalibration(club: ClubContext, clipId: number, input: CalibrationInput): Promise<CalibrationDto & { refitJobIds: number[] }> {
   const clip = await findVisibleClip(club, clipId);
   checkInside(clip, input);
-  const frame = computeCalibration(input);
-  let check = null;
-  if (input.ball) {
-    const spec = BALLS[input.ball.ballId];
-    if (!spec) {
-      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue.`, {
-        'ball.ballId': 'Pick a ball from the catalogue.',
-      });
-    }
-    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, spec.diameterM.nominal);
-  }
+  const values = calibrationValues(input);
   const { cal, jobIds } = await sequelize.transaction(async (transaction) => {
     await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });
     const created = await Calibration.create(
-      {
-        clubId: club.id,
-        clipId: clip.id,
-        input,
-        metresPerPixel: frame.metresPerPixel,
-        levelAngleDeg: frame.levelAngleDeg,
-        ballCheck: check,
-        supersededAt: null,
-      },
+      { clubId: club.id, clipId: clip.id, input, ...values, supersededAt: null },
       { transaction },
     );
     const ids = await enqueueRefits(club.id, { clipId: clip.id }, transaction);

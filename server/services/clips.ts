@@ -6,7 +6,7 @@
 import { rename, rm } from 'node:fs/promises';
 import { extname, join } from 'node:path';
 import type { Readable } from 'node:stream';
-import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
 import type { ErrorCode } from '../../shared/errors';
 import type { Clip as ClipDto, ClipPatch, ClipStatus, ClipUploadFields, JobSummary } from '../../shared/schemas/clip';
 import { sequelize } from '../db';
@@ -17,9 +17,10 @@ import { Clip } from '../models';
 import { clipKeys, storage } from '../storage';
 import { isVideoError, probeClip, probeFrameSet, type ClipProbe, type FrameSetProbe } from '../video';
 import { currentCalibrations, toCalibrationDto } from './calibration';
-import { enqueueRefits } from './fits';
 import { latestJobs, toJobDto, toJobSummary } from './jobs';
-import { findVisibleSession, removeClipFiles } from './sessions';
+import { enqueueRefits } from './refits';
+import { removeClipFiles } from './sessions';
+import { athleteClipIds, findVisibleClip, findVisibleSession } from './visibility';
 
 /** A file multer wrote to the upload work folder. */
 export interface UploadedFile {
@@ -37,24 +38,6 @@ export interface ClipUpload {
 }
 
 const VIDEO_EXTENSIONS: Record<string, string> = { mp4: '.mp4', mov: '.mov', matroska: '.mkv', webm: '.webm', avi: '.avi', mpegts: '.ts' };
-
-/** Ids of clips holding flights of the athlete. */
-async function athleteClipIds(club: ClubContext, transaction?: Transaction): Promise<number[]> {
-  if (club.athleteProfileId === null) return [];
-  const rows = await sequelize.query<{ id: number }>(
-    'SELECT DISTINCT clip_id AS id FROM flights WHERE club_id = :clubId AND athlete_profile_id = :athleteId',
-    { type: QueryTypes.SELECT, replacements: { clubId: club.id, athleteId: club.athleteProfileId }, transaction },
-  );
-  return rows.map((r) => Number(r.id));
-}
-
-/** The clip if the caller may see it, else 404. */
-export async function findVisibleClip(club: ClubContext, clipId: number, transaction?: Transaction): Promise<Clip> {
-  const clip = await Clip.findOne({ where: { id: clipId, clubId: club.id }, transaction });
-  if (!clip) throw notFound('clip');
-  if (club.role === 'athlete' && !(await athleteClipIds(club, transaction)).includes(clipId)) throw notFound('clip');
-  return clip;
-}
 
 async function flightCounts(club: ClubContext, clipIds: number[]): Promise<Map<number, number>> {
   const out = new Map<number, number>();
@@ -408,5 +391,11 @@ async function openStored(key: string, what: string): Promise<{ stream: Readable
 export async function countClips(club: ClubContext): Promise<number> {
   if (club.role === 'athlete') return (await athleteClipIds(club)).length;
   return Clip.count({ where: { clubId: club.id } });
+}
+
+/** Clips being processed, for the overview; athletes start no processing, so theirs is 0. */
+export async function countProcessingClips(club: ClubContext): Promise<number> {
+  if (club.role === 'athlete') return 0;
+  return Clip.count({ where: { clubId: club.id, status: 'processing' } });
 }
 

@@ -1,5 +1,6 @@
 /**
- * Club profile, Overview counts, members and their roles.
+ * Club profile, Overview counts (members and profiles here, the other resources from their services),
+ * members and their roles.
  */
 import { fn, col } from 'sequelize';
 import type { ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary } from '../../shared/schemas/club';
@@ -8,6 +9,9 @@ import { withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { AthleteProfile, Club, Membership, User } from '../models';
+import { countClips, countProcessingClips } from './clips';
+import { countFlights } from './flights';
+import { countSessions } from './sessions';
 
 export function toClubProfile(club: Club): ClubProfile {
   return {
@@ -38,17 +42,6 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
   return toClubProfile(club);
 }
 
-/**
- * A count shown on the Overview. Later features register theirs (sessions, clips, flights...) with
- * `registerOverviewCount`; the counter receives the club context so it can scope an athlete to their own data.
- */
-export type OverviewCounter = (club: ClubContext) => Promise<number>;
-const overviewCounters = new Map<string, OverviewCounter>();
-
-export function registerOverviewCount(key: string, counter: OverviewCounter): void {
-  overviewCounters.set(key, counter);
-}
-
 export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
   const club = await findClub(clubCtx.id);
   const byRole = (await Membership.findAll({
@@ -70,8 +63,13 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
     coaches: roleCount('coach'),
     athletes: roleCount('athlete'),
     athleteProfiles,
+    // Each resource counts what the caller may see of it (an athlete: their own).
+    sessions: await countSessions(clubCtx),
+    clips: await countClips(clubCtx),
+    flights: await countFlights(clubCtx),
+    flightsNeedingAttention: await countFlights(clubCtx, 'needs_attention'),
+    clipsProcessing: await countProcessingClips(clubCtx),
   };
-  for (const [key, counter] of overviewCounters) counts[key] = await counter(clubCtx);
   return {
     club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
     role: clubCtx.role,

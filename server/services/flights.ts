@@ -3,8 +3,11 @@
  * only their own flights (`athleteProfileId`, as `scopeAthlete()` gives it).
  */
 import { Op, QueryTypes, type Transaction } from 'sequelize';
+import type { z } from 'zod';
 import {
   DEFAULT_FLIGHT_ACTIONS,
+  type flightActionInputSchema,
+  type flightActionPatchSchema,
   type Flight as FlightDto,
   type FlightAction as FlightActionDto,
   type FlightDetail,
@@ -17,12 +20,11 @@ import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
 import { currentCalibration, toCalibrationDto } from './calibration';
-import { findVisibleClip } from './clips';
-import { enqueueRefits, latestFits, toFitSummary } from './fits';
+import { latestFits, toFitSummary } from './fits';
 import { latestJobs, toJobSummary } from './jobs';
+import { enqueueRefits } from './refits';
 import { pointsOf } from './tracks';
-
-// ---- actions -------------------------------------------------------------------------------------
+import { findVisibleClip, findVisibleFlight, findVisibleFlightWithClip, flightScope } from './visibility';
 
 /** Gives a club the default action list the first time it is needed (idempotent; the unique key absorbs races). */
 export async function ensureDefaultActions(clubId: number, transaction?: Transaction): Promise<void> {
@@ -61,7 +63,7 @@ function keyFromLabel(label: string): string {
   return key || 'action';
 }
 
-export async function createAction(club: ClubContext, input: { key?: string; label: string }): Promise<FlightActionDto> {
+export async function createAction(club: ClubContext, input: z.output<typeof flightActionInputSchema>): Promise<FlightActionDto> {
   await ensureDefaultActions(club.id);
   const key = input.key ?? keyFromLabel(input.label);
   const existing = await FlightAction.findOne({ where: { clubId: club.id, key } });
@@ -81,7 +83,7 @@ async function findAction(club: ClubContext, actionId: number): Promise<FlightAc
   return action;
 }
 
-export async function patchAction(club: ClubContext, actionId: number, patch: { label?: string; archived?: boolean }): Promise<FlightActionDto> {
+export async function patchAction(club: ClubContext, actionId: number, patch: z.output<typeof flightActionPatchSchema>): Promise<FlightActionDto> {
   const action = await findAction(club, actionId);
   if (patch.label !== undefined) action.label = patch.label;
   if (patch.archived !== undefined) action.archived = patch.archived;
@@ -114,19 +116,6 @@ async function checkAthlete(clubId: number, athleteId: number, transaction?: Tra
     throw new ApiError('VALIDATION_FAILED', 'That athlete is not in this club. Pick an athlete from the squad.', { athleteId: 'Pick an athlete from the squad.' });
   }
   return profile;
-}
-
-// ---- flights -------------------------------------------------------------------------------------
-
-function scoped(club: ClubContext): { clubId: number; athleteProfileId?: number } {
-  return club.role === 'athlete' ? { clubId: club.id, athleteProfileId: club.athleteProfileId ?? 0 } : { clubId: club.id };
-}
-
-/** The flight if the caller may see it (an athlete: only their own), else 404. */
-export async function findVisibleFlight(club: ClubContext, flightId: number, transaction?: Transaction): Promise<Flight> {
-  const flight = await Flight.findOne({ where: { id: flightId, ...scoped(club) }, transaction });
-  if (!flight) throw notFound('flight');
-  return flight;
 }
 
 async function sessionIdsOf(clipIds: number[]): Promise<Map<number, number>> {
@@ -187,7 +176,7 @@ export interface FlightQuery {
 }
 
 export async function listFlights(club: ClubContext, query: FlightQuery): Promise<FlightDto[]> {
-  const where: Record<string | symbol, unknown> = { ...scoped(club) };
+  const where: Record<string | symbol, unknown> = { ...flightScope(club) };
   if (query.clipId) where.clipId = query.clipId;
   if (query.athleteId && club.role !== 'athlete') where.athleteProfileId = query.athleteId;
   if (query.athleteId && club.role === 'athlete' && query.athleteId !== club.athleteProfileId) return [];
@@ -211,9 +200,7 @@ export async function getFlight(club: ClubContext, flightId: number): Promise<Fl
 }
 
 export async function getFlightDetail(club: ClubContext, flightId: number): Promise<FlightDetail> {
-  const flight = await findVisibleFlight(club, flightId);
-  const clip = await Clip.findByPk(flight.clipId);
-  if (!clip) throw notFound('flight');
+  const { flight, clip } = await findVisibleFlightWithClip(club, flightId);
   const cal = await currentCalibration(clip.id);
   const [dto] = await toFlightDtos([flight]);
   return {
@@ -280,9 +267,7 @@ const REVIEW_FROM: FlightStatus[] = ['fitted', 'needs_attention'];
 
 export async function patchFlight(club: ClubContext, flightId: number, patch: FlightPatch): Promise<FlightDto> {
   await sequelize.transaction(async (transaction) => {
-    const flight = await findVisibleFlight(club, flightId, transaction);
-    const clip = await Clip.findByPk(flight.clipId, { transaction });
-    if (!clip) throw notFound('flight');
+    const { flight, clip } = await findVisibleFlightWithClip(club, flightId, transaction);
     if (patch.athleteId !== undefined) {
       await checkAthlete(club.id, patch.athleteId, transaction);
       flight.athleteProfileId = patch.athleteId;
@@ -334,5 +319,5 @@ export async function deleteFlight(club: ClubContext, flightId: number): Promise
 
 /** Flights the caller can see, for the overview. */
 export async function countFlights(club: ClubContext, status?: FlightStatus): Promise<number> {
-  return Flight.count({ where: { ...scoped(club), ...(status ? { status } : {}) } });
+  return Flight.count({ where: { ...flightScope(club), ...(status ? { status } : {}) } });
 }

@@ -10,21 +10,12 @@ import type { ClubContext } from '../http/types';
 import { log } from '../logger';
 import { Session } from '../models';
 import { clipKeys, storage } from '../storage';
+import { enqueueRefits } from './refits';
+import { athleteSessionIds, findVisibleSession } from './visibility';
 
 interface Counts {
   clipCount: number;
   flightCount: number;
-}
-
-/** Ids of the sessions that hold flights of the athlete (empty for someone with no profile). */
-async function athleteSessionIds(club: ClubContext): Promise<number[]> {
-  if (club.athleteProfileId === null) return [];
-  const rows = await sequelize.query<{ id: number }>(
-    `SELECT DISTINCT c.session_id AS id FROM flights f JOIN clips c ON c.id = f.clip_id
-      WHERE f.club_id = :clubId AND f.athlete_profile_id = :athleteId`,
-    { type: QueryTypes.SELECT, replacements: { clubId: club.id, athleteId: club.athleteProfileId } },
-  );
-  return rows.map((r) => Number(r.id));
 }
 
 /** Clip and flight counts per session; an athlete's counts cover only their own flights. */
@@ -72,14 +63,6 @@ function toDto(session: Session, counts: Counts): SessionDto {
   };
 }
 
-/** The session if the caller may see it, else 404 (another club's, or an athlete's session without their flights). */
-export async function findVisibleSession(club: ClubContext, sessionId: number): Promise<Session> {
-  const session = await Session.findOne({ where: { id: sessionId, clubId: club.id } });
-  if (!session) throw notFound('session');
-  if (club.role === 'athlete' && !(await athleteSessionIds(club)).includes(sessionId)) throw notFound('session');
-  return session;
-}
-
 export async function listSessions(club: ClubContext, query: SessionListQuery): Promise<SessionDto[]> {
   const where: WhereOptions<Session>[] = [{ clubId: club.id }];
   if (query.from) where.push({ date: { [Op.gte]: query.from } });
@@ -117,20 +100,20 @@ export async function createSession(club: ClubContext, input: SessionInput): Pro
   return toDto(session, { clipCount: 0, flightCount: 0 });
 }
 
-/** Fields whose change alters the air of the session's flights (their fits then need redoing). */
-export async function updateSession(club: ClubContext, sessionId: number, patch: SessionPatch): Promise<{ session: SessionDto; conditionsChanged: boolean }> {
+/** Updates a session; new conditions mean new air for its flights, so their fits are redone. */
+export async function updateSession(club: ClubContext, sessionId: number, patch: SessionPatch): Promise<SessionDto> {
   const session = await findVisibleSession(club, sessionId);
   const before = JSON.stringify(conditionsOf(session));
   if (patch.date !== undefined) session.date = patch.date;
   if (patch.venue !== undefined) session.venue = patch.venue;
   if (patch.notes !== undefined) session.notes = patch.notes ?? null;
   Object.assign(session, conditionValues(patch.conditions));
-  await session.save();
+  await sequelize.transaction(async (transaction) => {
+    await session.save({ transaction });
+    if (before !== JSON.stringify(conditionsOf(session))) await enqueueRefits(club.id, { sessionId: session.id, onlyFitted: true }, transaction);
+  });
   const counts = await countsFor(club, [session.id]);
-  return {
-    session: toDto(session, counts.get(session.id) ?? { clipCount: 0, flightCount: 0 }),
-    conditionsChanged: before !== JSON.stringify(conditionsOf(session)),
-  };
+  return toDto(session, counts.get(session.id) ?? { clipCount: 0, flightCount: 0 });
 }
 
 /**

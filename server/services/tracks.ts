@@ -15,13 +15,13 @@ import {
   type TrackPointInput,
 } from '../../shared/schemas/track';
 import { sequelize } from '../db';
-import { ApiError, notFound } from '../http/errors';
+import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { enqueue } from '../jobs/queue';
 import { Calibration, Clip, Flight, TrackPoint } from '../models';
 import { currentCalibration, frameOf } from './calibration';
-import { findVisibleFlight } from './flights';
 import { toJobDto } from './jobs';
+import { findVisibleFlightWithClip } from './visibility';
 
 /** A flight's points as the API shows them: t = frame / captureFps; metres when the clip is calibrated. */
 export async function pointsOf(flight: Flight, clip: Clip, cal: Calibration | null, transaction?: Transaction): Promise<TrackPointDto[]> {
@@ -43,15 +43,8 @@ export async function pointsOf(flight: Flight, clip: Clip, cal: Calibration | nu
   });
 }
 
-async function flightWithClip(club: ClubContext, flightId: number, transaction?: Transaction): Promise<{ flight: Flight; clip: Clip }> {
-  const flight = await findVisibleFlight(club, flightId, transaction);
-  const clip = await Clip.findByPk(flight.clipId, { transaction });
-  if (!clip) throw notFound('flight');
-  return { flight, clip };
-}
-
 export async function getPoints(club: ClubContext, flightId: number): Promise<TrackPointDto[]> {
-  const { flight, clip } = await flightWithClip(club, flightId);
+  const { flight, clip } = await findVisibleFlightWithClip(club, flightId);
   return pointsOf(flight, clip, await currentCalibration(clip.id));
 }
 
@@ -93,7 +86,7 @@ async function writePoints(flight: Flight, points: TrackPointInput[], transactio
 
 export async function replacePoints(club: ClubContext, flightId: number, points: TrackPointInput[]): Promise<TrackPointDto[]> {
   return sequelize.transaction(async (transaction) => {
-    const { flight, clip } = await flightWithClip(club, flightId, transaction);
+    const { flight, clip } = await findVisibleFlightWithClip(club, flightId, transaction);
     const fields: Record<string, string> = {};
     points.forEach((p, i) => {
       const problem = pointProblem(p, flight, clip);
@@ -130,7 +123,7 @@ export async function importCsv(club: ClubContext, flightId: number, text: strin
     throw err;
   }
   return sequelize.transaction(async (transaction) => {
-    const { flight, clip } = await flightWithClip(club, flightId, transaction);
+    const { flight, clip } = await findVisibleFlightWithClip(club, flightId, transaction);
     const cal = await currentCalibration(clip.id, transaction);
     const rows: { line: number; column: string; point: TrackPointInput }[] = [];
     if (parsed.kind === 'pixels') {
@@ -176,7 +169,7 @@ export async function importCsv(club: ClubContext, flightId: number, text: strin
 }
 
 export async function exportCsv(club: ClubContext, flightId: number): Promise<{ filename: string; csv: string }> {
-  const { flight, clip } = await flightWithClip(club, flightId);
+  const { flight, clip } = await findVisibleFlightWithClip(club, flightId);
   const points = await pointsOf(flight, clip, await currentCalibration(clip.id));
   const lines = [TRACK_CSV_COLUMNS.join(',')];
   for (const p of points) {
@@ -187,7 +180,7 @@ export async function exportCsv(club: ClubContext, flightId: number): Promise<{ 
 
 /** Queues auto-follow from a clicked point of a processed clip. */
 export async function startFollow(club: ClubContext, flightId: number, body: FollowBody): Promise<JobDto> {
-  const { flight, clip } = await flightWithClip(club, flightId);
+  const { flight, clip } = await findVisibleFlightWithClip(club, flightId);
   if (!clip.framesReady) {
     throw new ApiError('CONFLICT', 'The clip is still being processed (or its processing failed): follow the ball once its frames are ready.');
   }

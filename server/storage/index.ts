@@ -1,6 +1,6 @@
 /**
- * Storage of uploaded clips and their frames behind one interface, so that object storage can
- * replace the local disk later without touching the services.
+ * Storage of uploaded clips and their frames behind one interface: the services never see whether
+ * the bytes sit on the local disk or in another store.
  *
  * Keys are relative, slash-separated paths (`clubs/3/clips/17/frames/frame-000001.jpg`). Work that
  * needs real files (ffmpeg, ffprobe) happens in a local work folder from `workDir()`; the results are

@@ -5,7 +5,8 @@ import { generateTrack } from '../../shared/physics';
 import { runSeeders } from '../../server/seeders';
 import { DEMO_PASSWORD, seed as seedClub } from '../../server/seeders/0001-demo-club';
 import { seed as seedFlights } from '../../server/seeders/0002-demo-flights';
-import { clipLayout, DEMO_SESSIONS, sessionAir, type DemoFlightPlan, type DemoSessionPlan } from '../../server/seeders/demo/plan';
+import { clipLayout, DEMO_SESSIONS, type DemoFlightPlan, type DemoSessionPlan } from '../../server/seeders/demo/plan';
+import { loadFitInput, sessionAir } from '../../server/services/fit-input';
 import { sequelize, Session } from '../../server/models';
 import { signIn, testApp, type ApiClient } from '../support/app';
 import { useTestStorage, type TestStorage } from './clips/helpers';
@@ -202,6 +203,25 @@ describe('demo flights seed', () => {
         const rmsPerCoordinate = Math.sqrt(sumSq / (2 * points.length));
         expect(rmsPerCoordinate).toBeGreaterThan(0.7 * sigmaM);
         expect(rmsPerCoordinate).toBeLessThan(1.3 * sigmaM);
+      }
+    });
+
+    it('gives the fit the traced points in metres, the flight\'s ball and the air its clip was rendered in', async () => {
+      for (const { session, flight } of PLANS) {
+        const layout = clipLayout(session, flight);
+        const body = flightOf(flight);
+        const points = (await coach.get(`/api/v1/clubs/${clubId}/flights/${body.id}/points`)).body.data as { tS: number; xM: number; yM: number }[];
+        const input = await loadFitInput(body.id);
+        expect(input.calibration.clipId).toBe(body.clipId);
+        expect(input.track.t).toHaveLength(points.length);
+        points.forEach((p, i) => {
+          expect(input.track.t[i]).toBeCloseTo(p.tS, 12);
+          expect(input.track.x[i]).toBeCloseTo(p.xM, 9);
+          expect(input.track.y[i]).toBeCloseTo(p.yM, 9);
+        });
+        expect(input.options.ball).toBe(flight.ballId);
+        expect(input.options.windSpeed).toBeCloseTo(0, 9);
+        expect(input.options.air!.densityKgM3).toBeCloseTo(layout.air.densityKgM3, 12);
       }
     });
 

@@ -4,44 +4,15 @@
  * `needs_attention` with the reason when the engine flags the result (for example a scale that
  * disagrees with gravity by more than a few per cent).
  */
-import {
-  airFromConditions,
-  BALLS,
-  ENGINE_VERSION,
-  fitFlight,
-  FLIGHT_MODELS,
-  type Conditions as AirConditions,
-  type FitResult,
-  type ModelChoice,
-} from '../../../shared/physics';
-import { computeCalibration, pixelToMetres } from '../../../shared/schemas/calibration';
+import { ENGINE_VERSION, fitFlight, FLIGHT_MODELS, type FitResult, type ModelChoice } from '../../../shared/physics';
 import type { FitWarning } from '../../../shared/schemas/flight';
 import { sequelize } from '../../db';
-import { Calibration, Clip, Fit, Flight, Session, TrackPoint } from '../../models';
+import { Fit, Flight, TrackPoint } from '../../models';
+import { loadFitInput } from '../../services/fit-input';
 import { JobFailure, type JobHandler } from '../types';
 
 /** Warnings that make a fit need a coach's attention instead of counting as a plain result. */
 const ATTENTION_WARNINGS = new Set(['SCALE_DISAGREES', 'NOT_CONVERGED', 'NEGATIVE_CD']);
-
-/** The session's weather as the engine reads it (°C from the stored kelvin); null when nothing is known. */
-export function airConditions(session: Session): AirConditions | null {
-  const c: AirConditions = {};
-  if (session.airTemperatureK !== null) c.temperatureC = session.airTemperatureK - 273.15;
-  if (session.airPressurePa !== null) c.pressurePa = session.airPressurePa;
-  if (session.relativeHumidityPct !== null) c.relativeHumidityPct = session.relativeHumidityPct;
-  if (session.altitudeM !== null) c.altitudeM = session.altitudeM;
-  return Object.keys(c).length > 0 ? c : null;
-}
-
-/**
- * Wind along the flight (m/s, + = tailwind) from speed and the direction it blows towards (0° = along the flight).
- * Note: a speed without a direction says nothing about the along-flight part, so it counts as still air
- * rather than as a full tailwind (which would bias the fitted drag coefficient).
- */
-export function windAlongFlight(session: Session): number {
-  if (session.windSpeedMps === null || session.windDirectionDeg === null) return 0;
-  return session.windSpeedMps * Math.cos((session.windDirectionDeg * Math.PI) / 180);
-}
 
 function pointsSignature(points: { id: number }[]): string {
   return `${points.length}:${points.reduce((max, p) => Math.max(max, p.id), 0)}`;
@@ -54,38 +25,16 @@ export const flightFitHandler: JobHandler = {
 
   async run({ job, progress }) {
     const flightId = job.payload.flightId;
-    const flight = typeof flightId === 'number' ? await Flight.findByPk(flightId) : null;
-    const clip = flight ? await Clip.findByPk(flight.clipId) : null;
-    const session = clip ? await Session.findByPk(clip.sessionId) : null;
-    if (!flight || !clip || !session) throw new JobFailure('The flight was deleted before it could be fitted.', 'FLIGHT_GONE');
-    const cal = await Calibration.findOne({ where: { clipId: clip.id, supersededAt: null }, order: [['id', 'DESC']] });
-    if (!cal) throw new JobFailure('Calibrate the clip before fitting: the fit needs the traced points in metres.', 'CALIBRATION_REQUIRED');
-    const points = await TrackPoint.findAll({ where: { flightId: flight.id }, order: [['frame', 'ASC']] });
+    if (typeof flightId !== 'number') throw new JobFailure('The flight was deleted before it could be fitted.', 'FLIGHT_GONE');
+    const { flight, clip, calibration: cal, points, track, options } = await loadFitInput(flightId);
     // Every save of points writes new rows, so the largest id tells whether the points changed meanwhile.
     const pointsSeen = pointsSignature(points);
-    if (!BALLS[flight.ballId]) {
-      throw new JobFailure(`The ball "${flight.ballId}" is not in the catalogue, so the fit has no mass and size for it. Pick a catalogue ball for this flight.`, 'UNKNOWN_BALL');
-    }
-    const frame = computeCalibration(cal.input);
-    const track = { t: [] as number[], x: [] as number[], y: [] as number[] };
-    for (const p of points) {
-      const m = pixelToMetres(frame, { xPx: p.xPx, yPx: p.yPx });
-      track.t.push(p.frame / clip.captureFps);
-      track.x.push(m.xM);
-      track.y.push(m.yM);
-    }
-    const conditions = airConditions(session);
     const requested = typeof job.payload.model === 'string' ? job.payload.model : 'auto';
     if (requested !== 'auto' && !FLIGHT_MODELS.includes(requested as (typeof FLIGHT_MODELS)[number])) {
       throw new JobFailure(`Unknown model "${requested}": use auto, ${FLIGHT_MODELS.join(', ')}.`, 'BAD_OPTION');
     }
     progress(10);
-    const result: FitResult = fitFlight(track, {
-      model: requested as ModelChoice,
-      ball: flight.ballId,
-      ...(conditions ? { air: airFromConditions(conditions) } : {}),
-      windSpeed: windAlongFlight(session),
-    });
+    const result: FitResult = fitFlight(track, { ...options, model: requested as ModelChoice });
     progress(90);
 
     const warnings: FitWarning[] = result.warnings.map((w) => ({ code: w.code, message: w.message }));
@@ -103,7 +52,7 @@ export const flightFitHandler: JobHandler = {
       cl: round(result.cl),
       clError: round(result.clError),
       dragRate: round(result.dragRate),
-      windAlongFlightMps: round(windAlongFlight(session)),
+      windAlongFlightMps: round(options.windSpeed),
       airDensityKgM3: round(result.setup.air.densityKgM3),
       metresPerPixel: round(cal.metresPerPixel, 8),
       captureFps: clip.captureFps,

@@ -6,14 +6,10 @@
  *
  * Every name, venue and date here is invented (PRODUCT.md, "Demo scenario").
  */
-import { airFromConditions, ballProps, dragFactor, simulateFlight, type Air, type FlightSummary, type Launch } from '../../../shared/physics';
+import { ballProps, dragFactor, simulateFlight, type Air, type FlightSummary, type Launch } from '../../../shared/physics';
 import type { Conditions } from '../../../shared/schemas/session';
 import type { PointSource } from '../../../shared/schemas/track';
-import { airConditions, windAlongFlight } from '../../jobs/handlers/flight-fit';
-import { Session } from '../../models';
-
-/** 0 °C in kelvin (the sessions store temperatures in kelvin). */
-const ZERO_CELSIUS_K = 273.15;
+import { sessionAir, windAlongFlight, ZERO_CELSIUS_K } from '../../services/fit-input';
 
 /** How the ball of a demo clip was traced. */
 export interface DemoTracing {
@@ -164,16 +160,6 @@ export const DEMO_SESSIONS: readonly DemoSessionPlan[] = [
   },
 ];
 
-/** An unsaved session with these conditions, to read them exactly as the fit job reads a stored one. */
-function asSession(conditions: Conditions): Session {
-  return Session.build({ clubId: 0, date: '2000-01-01', venue: 'demo', notes: null, ...conditions });
-}
-
-/** The session's air as the fit job derives it (so the clips fly in the air their fits assume). */
-export function sessionAir(conditions: Conditions): Air {
-  return airFromConditions(airConditions(asSession(conditions)) ?? {});
-}
-
 /** Free space kept around the flight in the picture (px). */
 const MARGIN_PX = { right: 24, top: 18 };
 /** Seconds filmed before the release and after the landing. */
@@ -209,7 +195,7 @@ export interface ClipLayout {
  * @throws Error when the session's wind has a part along the flight (the generator flies in still air)
  */
 export function clipLayout(session: DemoSessionPlan, flight: DemoFlightPlan): ClipLayout {
-  if (Math.abs(windAlongFlight(asSession(session.conditions))) > 1e-9) {
+  if (Math.abs(windAlongFlight(session.conditions)) > 1e-9) {
     throw new Error(`Demo session "${session.key}": the clip generator flies in still air, so the wind must blow across the field (90° or 270°).`);
   }
   const { width, height, captureFps } = flight.clip;

@@ -77,7 +77,7 @@ describe('auto-follow job', () => {
     expect(points.some((p) => p.xPx === 1 && p.yPx === 1)).toBe(false);
     for (const p of auto) expect(p.confidence).toBeGreaterThanOrEqual(0);
 
-    // Same checks the issue sets for the follower: median error ≤ 1.5 px, ≥ 95 % of the visible airborne frames from the click.
+    // The follower's acceptance bar: median error ≤ 1.5 px, ≥ 95 % of the visible airborne frames from the click.
     const errors = auto.map((p) => {
       const t = truth.frames[p.frame]!;
       return Math.hypot(p.xPx - t.x, p.yPx - t.y);

@@ -27,7 +27,7 @@ async function videoError(p: Promise<unknown>): Promise<VideoError> {
 }
 
 /**
- * The acceptance measure of issue 4: the median distance of followed centres from the true ones,
+ * How well the follower did: the median distance of followed centres from the true ones,
  * and the share of frames followed from the click to the last frame in which the whole ball is in
  * the picture and in the air.
  */

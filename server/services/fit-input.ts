@@ -1,0 +1,88 @@
+/**
+ * The input of a flight's fit, built in one place for the `flight.fit` job, the demo seeder and the
+ * tests: the clip's current calibration turns the traced pixels into metres (t = frame / capture rate),
+ * the session's conditions give the air and the wind along the flight, and the flight names the ball.
+ */
+import { airFromConditions, BALLS, type Air, type Conditions as AirConditions } from '../../shared/physics';
+import { pixelToMetres } from '../../shared/schemas/calibration';
+import type { Conditions } from '../../shared/schemas/session';
+import { JobFailure } from '../jobs/types';
+import { Clip, Flight, Session, TrackPoint, type Calibration } from '../models';
+import { currentCalibration, frameOf } from './calibration';
+import { conditionsOf } from './sessions';
+
+/** 0 °C in kelvin (sessions store temperatures in kelvin, the engine reads °C). */
+export const ZERO_CELSIUS_K = 273.15;
+
+/** A session's weather as the engine reads it (°C from the stored kelvin); null when nothing is known. */
+export function airConditions(conditions: Conditions): AirConditions | null {
+  const c: AirConditions = {};
+  if (conditions.airTemperatureK !== null) c.temperatureC = conditions.airTemperatureK - ZERO_CELSIUS_K;
+  if (conditions.airPressurePa !== null) c.pressurePa = conditions.airPressurePa;
+  if (conditions.relativeHumidityPct !== null) c.relativeHumidityPct = conditions.relativeHumidityPct;
+  if (conditions.altitudeM !== null) c.altitudeM = conditions.altitudeM;
+  return Object.keys(c).length > 0 ? c : null;
+}
+
+/** The air a fit assumes for a session (standard air for whatever is not known). */
+export function sessionAir(conditions: Conditions): Air {
+  return airFromConditions(airConditions(conditions) ?? {});
+}
+
+/**
+ * Wind along the flight (m/s, + = tailwind) from speed and the direction it blows towards (0° = along the flight).
+ * Note: a speed without a direction says nothing about the along-flight part, so it counts as still air
+ * rather than as a full tailwind (which would bias the fitted drag coefficient).
+ */
+export function windAlongFlight(conditions: Conditions): number {
+  if (conditions.windSpeedMps === null || conditions.windDirectionDeg === null) return 0;
+  return conditions.windSpeedMps * Math.cos((conditions.windDirectionDeg * Math.PI) / 180);
+}
+
+export interface FitInput {
+  flight: Flight;
+  clip: Clip;
+  calibration: Calibration;
+  /** The traced points in frame order, as stored (their ids tell whether they changed meanwhile). */
+  points: TrackPoint[];
+  /** The points in seconds and metres (t from the capture rate, x along the flight, y up). */
+  track: { t: number[]; x: number[]; y: number[] };
+  /** Ball, air and wind for `fitFlight` (no air: the engine assumes standard air); the model is the caller's choice. */
+  options: { ball: string; air?: Air; windSpeed: number };
+}
+
+/**
+ * Loads everything the fit of one flight needs.
+ * @throws JobFailure `FLIGHT_GONE` (the flight, its clip or session was deleted), `CALIBRATION_REQUIRED`,
+ *   `UNKNOWN_BALL` (the flight's ball is not in the catalogue)
+ */
+export async function loadFitInput(flightId: number): Promise<FitInput> {
+  const flight = await Flight.findByPk(flightId);
+  const clip = flight ? await Clip.findByPk(flight.clipId) : null;
+  const session = clip ? await Session.findByPk(clip.sessionId) : null;
+  if (!flight || !clip || !session) throw new JobFailure('The flight was deleted before it could be fitted.', 'FLIGHT_GONE');
+  const calibration = await currentCalibration(clip.id);
+  if (!calibration) throw new JobFailure('Calibrate the clip before fitting: the fit needs the traced points in metres.', 'CALIBRATION_REQUIRED');
+  const points = await TrackPoint.findAll({ where: { flightId: flight.id }, order: [['frame', 'ASC']] });
+  if (!BALLS[flight.ballId]) {
+    throw new JobFailure(`The ball "${flight.ballId}" is not in the catalogue, so the fit has no mass and size for it. Pick a catalogue ball for this flight.`, 'UNKNOWN_BALL');
+  }
+  const frame = frameOf(calibration);
+  const track: FitInput['track'] = { t: [], x: [], y: [] };
+  for (const p of points) {
+    const m = pixelToMetres(frame, { xPx: p.xPx, yPx: p.yPx });
+    track.t.push(p.frame / clip.captureFps);
+    track.x.push(m.xM);
+    track.y.push(m.yM);
+  }
+  const conditions = conditionsOf(session);
+  const air = airConditions(conditions);
+  return {
+    flight,
+    clip,
+    calibration,
+    points,
+    track,
+    options: { ball: flight.ballId, ...(air ? { air: airFromConditions(air) } : {}), windSpeed: windAlongFlight(conditions) },
+  };
+}
