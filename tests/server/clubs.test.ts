@@ -75,7 +75,7 @@ describe('clubs: members and roles', () => {
     expect(promoted.body.data.role).toBe('admin');
     const stepDown = await f.admin.patch(`/api/v1/clubs/${f.clubId}/members/${f.members.admin.membershipId}`, { role: 'coach' });
     expect(stepDown.status).toBe(200);
-    // The former admin is a coach now: member roles are admin-only.
+    // After stepping down they hold the coach role, and changing roles is for admins only.
     const denied = await f.admin.patch(`/api/v1/clubs/${f.clubId}/members/${f.members.coach.membershipId}`, { role: 'coach' });
     expect(denied.status).toBe(403);
   });
