@@ -14,7 +14,7 @@ import {
   type FitResult,
   type ModelChoice,
 } from '../../../shared/physics';
-import { computeCalibration, pixelToMetres } from '../../../shared/schemas/calibration';
+import { computeCalibration, pixelToMetres } from '../../../shared/calibration/geometry';
 import type { FitWarning } from '../../../shared/schemas/flight';
 import { sequelize } from '../../db';
 import { Calibration, Clip, Fit, Flight, Session, TrackPoint } from '../../models';
