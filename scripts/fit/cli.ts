@@ -5,9 +5,10 @@
 import { readFile } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
 import {
-  airFromConditions, airFromDensity, BALLS, BALL_IDS, ENGINE_VERSION, fitFlight, isPhysicsError, parseTrackCsv, resolveBall,
-  type Air, type BallProps, type Conditions, type FitResult, type ModelChoice, type RobustLoss, type TrackMeta,
+  airFromConditions, airFromDensity, BALLS, BALL_IDS, ENGINE_VERSION, fitFlight, isPhysicsError, resolveBall,
+  type Air, type BallProps, type Conditions, type FitResult, type ModelChoice, type RobustLoss,
 } from '../../shared/physics/index';
+import { parseFitTrackCsv, type TrackMeta } from '../../shared/tracks/csv';
 
 export const USAGE = `Usage: npm run --silent fit -- [options] FILE...
 
@@ -233,7 +234,7 @@ export async function runFitCli(argv: string[], io: CliIo): Promise<number> {
       } catch (e) {
         throw new Error(`cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
       }
-      const { track, meta } = parseTrackCsv(text);
+      const { track, meta } = parseFitTrackCsv(text);
       const ball = ballFor(meta, opts.defaults);
       const air = airFor(meta, opts.defaults);
       const fit = fitFlight(track, {

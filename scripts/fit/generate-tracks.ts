@@ -6,7 +6,8 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { airFromConditions, formatTrackCsv, generateTrack, type SyntheticTrackSpec, type TrackMeta } from '../../shared/physics/index';
+import { airFromConditions, generateTrack, type SyntheticTrackSpec } from '../../shared/physics/index';
+import { formatTrackCsv, type TrackMeta } from '../../shared/tracks/csv';
 
 const here = dirname(fileURLToPath(import.meta.url));
 export const FIXTURE_DIR = join(here, '..', '..', 'tests', 'fixtures', 'tracks');

@@ -32,5 +32,5 @@ export {
   planFlight, whatIf, applyChange, plannerGrid, bestAngle, sensitivities, speedForCarry, PLANNER_RTOL,
   type FlightSetup, type WhatIfChange, type GridAxis, type CarryGrid, type Sensitivities,
 } from './planner';
-export { checkTrack, parseTrackCsv, formatTrackCsv, MIN_POINTS, type Track, type TrackMeta } from './track';
+export { checkTrack, MIN_POINTS, type Track } from './track';
 export { generateTrack, mulberry32, normalGenerator, type SyntheticTrackSpec } from './synthetic';
