@@ -14,6 +14,8 @@
  * counting comments and blank lines, the header included) and the column by its header name.
  * `NaN` is the one non-number the `fit` command reads, so that the track check names the point.
  */
+import type { Conditions } from '../physics/air';
+import { CELSIUS_ZERO_K } from '../physics/constants';
 import { PhysicsError } from '../physics/errors';
 import type { Track } from '../physics/track';
 
@@ -30,7 +32,10 @@ export class TrackCsvError extends PhysicsError {
   }
 }
 
-/** Metadata a track file may carry in its leading comments (SI, as named). */
+/**
+ * Metadata a track file may carry in its leading comments, in the file's units as named (the
+ * temperature in °C, as analysts write it); {@link trackFileConditions} gives the SI conditions.
+ */
 export interface TrackMeta {
   massKg?: number;
   diameterM?: number;
@@ -40,7 +45,21 @@ export interface TrackMeta {
   pressurePa?: number;
   humidityPct?: number;
   altitudeM?: number;
-  windMS?: number;
+  windAlongFlightMps?: number;
+}
+
+/**
+ * The weather of a track file as the engine reads it: kelvin from the file's °C, the other values as written.
+ * @returns the conditions, or null when the file names no temperature, pressure, humidity or altitude.
+ */
+export function trackFileConditions(meta: TrackMeta): Conditions | null {
+  if ([meta.temperatureC, meta.pressurePa, meta.humidityPct, meta.altitudeM].every((v) => v === undefined)) return null;
+  return {
+    airTemperatureK: meta.temperatureC === undefined ? undefined : meta.temperatureC + CELSIUS_ZERO_K,
+    airPressurePa: meta.pressurePa,
+    relativeHumidityPct: meta.humidityPct,
+    altitudeM: meta.altitudeM,
+  };
 }
 
 /** Comment keys of the metadata, as written in the files. */
@@ -53,7 +72,7 @@ const META_KEYS: Record<string, keyof TrackMeta> = {
   pressure_pa: 'pressurePa',
   humidity_pct: 'humidityPct',
   altitude_m: 'altitudeM',
-  wind_m_s: 'windMS',
+  wind_m_s: 'windAlongFlightMps',
 };
 
 /** A plain decimal number: sign, digits, optional fraction, optional complete exponent. */

@@ -23,11 +23,11 @@ import { JobFailure, type JobHandler } from '../types';
 /** Warnings that make a fit need a coach's attention instead of counting as a plain result. */
 const ATTENTION_WARNINGS = new Set(['SCALE_DISAGREES', 'NOT_CONVERGED', 'NEGATIVE_CD']);
 
-/** The session's weather as the engine reads it (°C from the stored kelvin); null when nothing is known. */
+/** The session's weather as the engine reads it (the stored SI values); null when nothing is known. */
 export function airConditions(session: Session): AirConditions | null {
   const c: AirConditions = {};
-  if (session.airTemperatureK !== null) c.temperatureC = session.airTemperatureK - 273.15;
-  if (session.airPressurePa !== null) c.pressurePa = session.airPressurePa;
+  if (session.airTemperatureK !== null) c.airTemperatureK = session.airTemperatureK;
+  if (session.airPressurePa !== null) c.airPressurePa = session.airPressurePa;
   if (session.relativeHumidityPct !== null) c.relativeHumidityPct = session.relativeHumidityPct;
   if (session.altitudeM !== null) c.altitudeM = session.altitudeM;
   return Object.keys(c).length > 0 ? c : null;

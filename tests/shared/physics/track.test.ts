@@ -13,7 +13,7 @@ describe('parseFitTrackCsv', () => {
     const { track, meta, columns } = parseFitTrackCsv(text);
     expect(Array.from(track.t)).toEqual([0, 0.1, 0.2]);
     expect(Array.from(track.x)).toEqual([0, 2.5, 5]);
-    expect(meta).toEqual({ massKg: 0.43, diameterM: 0.22, airDensityKgM3: 1.18, windMS: -2 });
+    expect(meta).toEqual({ massKg: 0.43, diameterM: 0.22, airDensityKgM3: 1.18, windAlongFlightMps: -2 });
     expect(columns.confidence).toEqual([0.9, 0.8, 0.95]);
   });
 
