@@ -1,7 +1,8 @@
 /**
  * The Dormand–Prince 5(4) method's coefficients and the step-size controller's constants, shared
- * by the generic integrator ({@link integrate} in `integrator.ts`) and the planner's scalar flight
- * kernel (`kernel.ts`), so that both take exactly the same steps.
+ * by the generic integrator (`integrate` in `integrator.ts`) and the planner's scalar flight
+ * kernel (`kernel.ts`), so that both take exactly the same steps, and the root finder both use to
+ * locate events on a step's dense output.
  *
  * Tableau: Dormand & Prince, "A family of embedded Runge–Kutta formulae", J. Comput. Appl. Math. 6
  * (1980) 19–26; Hairer, Nørsett & Wanner, *Solving Ordinary Differential Equations I* (2nd ed.
@@ -37,3 +38,32 @@ export const STEP_CONTROL = {
   /** Exponent of the error in the step factor: 1/5 − 0.75·β. */
   EXPO1: 0.2 - 0.04 * 0.75,
 } as const;
+
+/**
+ * Root of g on [ta, tb], where g(ta) and g(tb) differ in sign, by the Anderson–Björck variant of
+ * regula falsi (Anderson & Björck, BIT 12 (1972) 503), to a few ulps of t; used on the dense output
+ * of one step, so g is a cheap polynomial.
+ * @param g the function of t (same unit as ta, tb); @param ga g(ta); @param gb g(tb).
+ * @returns t of the zero; tb when gb is exactly 0.
+ */
+export function andersonBjorck(g: (t: number) => number, ta: number, tb: number, ga: number, gb: number): number {
+  if (gb === 0) return tb;
+  // b is always the newest point; a keeps the opposite sign.
+  let a = ta, b = tb, fa = ga, fb = gb;
+  const tolT = 8 * 2.3e-16 * Math.max(Math.abs(ta), Math.abs(tb), 1e-300);
+  for (let it = 0; it < 200 && Math.abs(b - a) > tolT; it++) {
+    let c = (a * fb - b * fa) / (fb - fa);
+    const lo = Math.min(a, b), hi = Math.max(a, b);
+    if (!(c > lo && c < hi)) c = 0.5 * (a + b);
+    const fc = g(c);
+    if (fc === 0) return c;
+    if ((fc > 0) !== (fb > 0)) {
+      a = b; fa = fb;
+    } else {
+      const m = 1 - fc / fb;
+      fa *= m > 0 ? m : 0.5;
+    }
+    b = c; fb = fc;
+  }
+  return Math.abs(fa) < Math.abs(fb) ? a : b;
+}

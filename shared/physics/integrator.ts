@@ -19,7 +19,7 @@
  * global error below about 1e-8 m; `scripts/bench/physics.ts` prints the measured discrepancy
  * against a tighter run and against `odex`.
  */
-import { DORMAND_PRINCE, STEP_CONTROL } from './dormand-prince';
+import { andersonBjorck, DORMAND_PRINCE, STEP_CONTROL } from './dormand-prince';
 import { PhysicsError } from './errors';
 
 /** Right-hand side y' = f(t, y), written into `dydt` (no allocation expected). */
@@ -255,7 +255,7 @@ function run(f: OdeRhs, t0: number, y0: ArrayLike<number>, options: IntegrateOpt
         const g0 = gPrev[e];
         const crosses = (ev.direction <= 0 && g0 > 0 && g1 <= 0) || (ev.direction >= 0 && g0 < 0 && g1 >= 0);
         if (crosses) {
-          const tHit = locateRoot(ev, t, tNew, g0, g1, interpolate, yTmp);
+          const tHit = andersonBjorck((tt) => { interpolate(tt, yTmp); return ev.g(tt, yTmp); }, t, tNew, g0, g1);
           interpolate(tHit, yTmp);
           hits.push({ name: ev.name, t: tHit, y: Float64Array.from(yTmp) });
           if (ev.terminal && tHit <= stopT) {
@@ -342,32 +342,4 @@ function initialStep(f: OdeRhs, t: number, y: Float64Array, f0: Float64Array, hM
   const der12 = Math.max(Math.abs(der2), Math.sqrt(dnf));
   const h1 = der12 <= 1e-15 ? Math.max(1e-6, Math.abs(h) * 1e-3) : Math.pow(0.01 / der12, 1 / 5);
   return Math.min(100 * Math.abs(h), h1, hMax);
-}
-
-/**
- * Root of an event function on the dense output of one step by the Anderson–Björck variant of
- * regula falsi (Anderson & Björck, BIT 12 (1972) 503), to a few ulps of t.
- */
-function locateRoot(ev: OdeEvent, ta: number, tb: number, ga: number, gb: number,
-  interpolate: (tt: number, out: Float64Array) => void, buf: Float64Array): number {
-  if (gb === 0) return tb;
-  // b is always the newest point; a keeps the opposite sign.
-  let a = ta, b = tb, fa = ga, fb = gb;
-  const tolT = 8 * 2.3e-16 * Math.max(Math.abs(ta), Math.abs(tb), 1e-300);
-  for (let it = 0; it < 200 && Math.abs(b - a) > tolT; it++) {
-    let c = (a * fb - b * fa) / (fb - fa);
-    const lo = Math.min(a, b), hi = Math.max(a, b);
-    if (!(c > lo && c < hi)) c = 0.5 * (a + b);
-    interpolate(c, buf);
-    const fc = ev.g(c, buf);
-    if (fc === 0) return c;
-    if ((fc > 0) !== (fb > 0)) {
-      a = b; fa = fb;
-    } else {
-      const m = 1 - fc / fb;
-      fa *= m > 0 ? m : 0.5;
-    }
-    b = c; fb = fc;
-  }
-  return Math.abs(fa) < Math.abs(fb) ? a : b;
 }

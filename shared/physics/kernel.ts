@@ -8,7 +8,7 @@
  *
  * One formula covers every model: a = −(κC_d V + β) u + κC_L V (−u_y, uₓ) − (0, g), u = (vₓ − w, v_y).
  */
-import { DORMAND_PRINCE, STEP_CONTROL } from './dormand-prince';
+import { andersonBjorck, DORMAND_PRINCE, STEP_CONTROL } from './dormand-prince';
 import { PhysicsError } from './errors';
 import type { MotionCoefficients } from './flight';
 
@@ -35,23 +35,6 @@ class Dense {
     const s = (t - this.t0) / this.h, s1 = 1 - s, o = comp * 5, c = this.c;
     return c[o] + s * (c[o + 1] + s1 * (c[o + 2] + s * (c[o + 3] + s1 * c[o + 4])));
   }
-}
-
-/** Zero of one component of the dense output on [a, b] by Anderson–Björck, as in the generic integrator. */
-function root(d: Dense, comp: number, ta: number, tb: number, ga: number, gb: number): number {
-  if (gb === 0) return tb;
-  let a = ta, b = tb, fa = ga, fb = gb;
-  const tolT = 8 * 2.3e-16 * Math.max(Math.abs(ta), Math.abs(tb), 1e-300);
-  for (let it = 0; it < 200 && Math.abs(b - a) > tolT; it++) {
-    let c = (a * fb - b * fa) / (fb - fa);
-    const lo = Math.min(a, b), hi = Math.max(a, b);
-    if (!(c > lo && c < hi)) c = 0.5 * (a + b);
-    const fc = d.at(c, comp);
-    if (fc === 0) return c;
-    if ((fc > 0) !== (fb > 0)) { a = b; fa = fb; } else { const m = 1 - fc / fb; fa *= m > 0 ? m : 0.5; }
-    b = c; fb = fc;
-  }
-  return Math.abs(fa) < Math.abs(fb) ? a : b;
 }
 
 const dense = new Dense();
@@ -153,11 +136,11 @@ export function flyKernel(c: MotionCoefficients, x0: number, y0: number, vx0: nu
         dc[o + 4] = h * (D1 * k1 + D3 * k3 + D4 * k4 + D5 * k5 + D6 * k6 + D7 * k7);
       }
       if (apexHere) {
-        const ta = root(dense, 3, t, tNew, v, vn);
+        const ta = andersonBjorck((tt) => dense.at(tt, 3), t, tNew, v, vn);
         apex = { t: ta, x: dense.at(ta, 0), y: dense.at(ta, 1) };
       }
       if (landHere) {
-        const tl = root(dense, 1, t, tNew, y, yn);
+        const tl = andersonBjorck((tt) => dense.at(tt, 1), t, tNew, y, yn);
         return { apex, landing: { t: tl, x: dense.at(tl, 0), vx: dense.at(tl, 2), vy: dense.at(tl, 3) }, steps };
       }
     }
