@@ -18,7 +18,7 @@ export const ERROR_CODES = {
   UNSUPPORTED_MEDIA: 415,
   UNPROCESSABLE: 422,
   RATE_LIMITED: 429,
-  // Clips, tracks and calibration (issue 4).
+  // Clips, tracks and calibration.
   CSV_INVALID: 400,
   CALIBRATION_REQUIRED: 409,
   MEDIA_UNREADABLE: 422,

@@ -14,7 +14,7 @@ import { flightRhs, flyToGround, initialState, motionCoefficients, type MotionCo
 import { integrate } from '../../shared/physics/integrator';
 import { fitDragWithMlLm, odexStates } from '../fit/reference';
 
-const air = airFromConditions({ temperatureC: 15, pressurePa: 101325, relativeHumidityPct: 50 });
+const air = airFromConditions({ airTemperatureK: 288.15, airPressurePa: 101325, relativeHumidityPct: 50 });
 
 function median(v: number[]): number {
   const s = [...v].sort((a, b) => a - b);

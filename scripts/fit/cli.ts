@@ -5,9 +5,10 @@
 import { readFile } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
 import {
-  airFromConditions, airFromDensity, BALLS, BALL_IDS, ENGINE_VERSION, fitFlight, isPhysicsError, parseTrackCsv, resolveBall,
-  type Air, type BallProps, type Conditions, type FitResult, type ModelChoice, type RobustLoss, type TrackMeta,
+  airFromConditions, airFromDensity, BALLS, BALL_IDS, CELSIUS_ZERO_K, ENGINE_VERSION, fitFlight, isPhysicsError, resolveBall,
+  type Air, type BallProps, type Conditions, type FitResult, type ModelChoice, type RobustLoss,
 } from '../../shared/physics/index';
+import { parseFitTrackCsv, trackFileConditions, type TrackMeta } from '../../shared/tracks/csv';
 
 export const USAGE = `Usage: npm run --silent fit -- [options] FILE...
 
@@ -169,9 +170,11 @@ function parse(argv: string[]): { files: string[]; defaults: Defaults; help: boo
   const rho = num('rho', v.rho, 0.3, 1.6);
   if (rho !== undefined) defaults.air = airFromDensity(rho);
   if (weather) {
+    // The option takes °C, as analysts write it; the engine reads kelvin.
+    const temperatureC = num('temperature', v.temperature, -40, 60);
     defaults.conditions = {
-      temperatureC: num('temperature', v.temperature, -40, 60),
-      pressurePa: num('pressure', v.pressure, 30000, 110000),
+      airTemperatureK: temperatureC === undefined ? undefined : temperatureC + CELSIUS_ZERO_K,
+      airPressurePa: num('pressure', v.pressure, 30000, 110000),
       relativeHumidityPct: num('humidity', v.humidity, 0, 100),
       altitudeM: num('altitude', v.altitude, -500, 10000),
     };
@@ -192,10 +195,9 @@ function ballFor(meta: TrackMeta, d: Defaults): BallProps | undefined {
 }
 
 function airFor(meta: TrackMeta, d: Defaults): Air | undefined {
-  if (meta.airDensityKgM3 !== undefined) return airFromDensity(meta.airDensityKgM3, meta.temperatureC ?? 15);
-  if ([meta.temperatureC, meta.pressurePa, meta.humidityPct, meta.altitudeM].some((x) => x !== undefined)) {
-    return airFromConditions({ temperatureC: meta.temperatureC, pressurePa: meta.pressurePa, relativeHumidityPct: meta.humidityPct, altitudeM: meta.altitudeM });
-  }
+  const conditions = trackFileConditions(meta);
+  if (meta.airDensityKgM3 !== undefined) return airFromDensity(meta.airDensityKgM3, conditions?.airTemperatureK ?? undefined);
+  if (conditions) return airFromConditions(conditions);
   return d.air;
 }
 
@@ -233,11 +235,11 @@ export async function runFitCli(argv: string[], io: CliIo): Promise<number> {
       } catch (e) {
         throw new Error(`cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
       }
-      const { track, meta } = parseTrackCsv(text);
+      const { track, meta } = parseFitTrackCsv(text);
       const ball = ballFor(meta, opts.defaults);
       const air = airFor(meta, opts.defaults);
       const fit = fitFlight(track, {
-        model: opts.defaults.model, ball, air, windSpeed: meta.windMS ?? opts.defaults.wind,
+        model: opts.defaults.model, ball, air, windSpeed: meta.windAlongFlightMps ?? opts.defaults.wind,
         loss: opts.defaults.loss, allowDescending: opts.defaults.descending,
       });
       io.out(JSON.stringify(fitLine(file, fit)));

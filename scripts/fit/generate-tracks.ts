@@ -6,13 +6,14 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { airFromConditions, formatTrackCsv, generateTrack, type SyntheticTrackSpec, type TrackMeta } from '../../shared/physics/index';
+import { airFromConditions, generateTrack, type SyntheticTrackSpec } from '../../shared/physics/index';
+import { formatTrackCsv, type TrackMeta } from '../../shared/tracks/csv';
 
 const here = dirname(fileURLToPath(import.meta.url));
 export const FIXTURE_DIR = join(here, '..', '..', 'tests', 'fixtures', 'tracks');
 
-const evening = airFromConditions({ temperatureC: 12, pressurePa: 101200, relativeHumidityPct: 70 });
-const upland = airFromConditions({ temperatureC: 27, altitudeM: 1600, relativeHumidityPct: 30 });
+const evening = airFromConditions({ airTemperatureK: 285.15, airPressurePa: 101200, relativeHumidityPct: 70 });
+const upland = airFromConditions({ airTemperatureK: 300.15, altitudeM: 1600, relativeHumidityPct: 30 });
 
 /** Each fixture: file name, the flight, and the metadata written into the file. */
 export const FIXTURES: { name: string; spec: SyntheticTrackSpec; meta: TrackMeta; comment: string }[] = [

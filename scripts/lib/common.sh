@@ -1,4 +1,4 @@
-# Shared helpers for scripts/*.sh. Source it; it sets ROOT and loads .env without overriding the environment.
+# Shell functions shared by scripts/*.sh. Source it; it sets ROOT and loads .env without overriding the environment.
 # shellcheck shell=bash
 
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/../.." && pwd)"

@@ -4,9 +4,8 @@
  */
 import { Op, type Transaction } from 'sequelize';
 import { BALLS } from '../../shared/physics';
+import { ballCheck, computeCalibration } from '../../shared/calibration/geometry';
 import {
-  ballCheck,
-  computeCalibration,
   type BallCheck,
   type Calibration as CalibrationDto,
   type CalibrationFrame,

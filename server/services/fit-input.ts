@@ -4,21 +4,18 @@
  * the session's conditions give the air and the wind along the flight, and the flight names the ball.
  */
 import { airFromConditions, BALLS, type Air, type Conditions as AirConditions } from '../../shared/physics';
-import { pixelToMetres } from '../../shared/schemas/calibration';
+import { pixelToMetres } from '../../shared/calibration/geometry';
 import type { Conditions } from '../../shared/schemas/session';
 import { JobFailure } from '../jobs/types';
 import { Clip, Flight, Session, TrackPoint, type Calibration } from '../models';
 import { currentCalibration, frameOf } from './calibration';
 import { conditionsOf } from './sessions';
 
-/** 0 °C in kelvin (sessions store temperatures in kelvin, the engine reads °C). */
-export const ZERO_CELSIUS_K = 273.15;
-
-/** A session's weather as the engine reads it (°C from the stored kelvin); null when nothing is known. */
+/** A session's weather as the engine reads it (the stored SI values); null when nothing is known. */
 export function airConditions(conditions: Conditions): AirConditions | null {
   const c: AirConditions = {};
-  if (conditions.airTemperatureK !== null) c.temperatureC = conditions.airTemperatureK - ZERO_CELSIUS_K;
-  if (conditions.airPressurePa !== null) c.pressurePa = conditions.airPressurePa;
+  if (conditions.airTemperatureK !== null) c.airTemperatureK = conditions.airTemperatureK;
+  if (conditions.airPressurePa !== null) c.airPressurePa = conditions.airPressurePa;
   if (conditions.relativeHumidityPct !== null) c.relativeHumidityPct = conditions.relativeHumidityPct;
   if (conditions.altitudeM !== null) c.altitudeM = conditions.altitudeM;
   return Object.keys(c).length > 0 ? c : null;

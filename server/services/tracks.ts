@@ -3,17 +3,14 @@
  * bulk replace, CSV import and export, and auto-follow requests.
  */
 import { Op, type Transaction } from 'sequelize';
-import { metresToPixel, pixelToMetres } from '../../shared/schemas/calibration';
+import { metresToPixel, pixelToMetres } from '../../shared/calibration/geometry';
 import type { Job as JobDto } from '../../shared/schemas/clip';
-import {
-  csvCell,
-  parseTrackCsv,
-  TRACK_CSV_COLUMNS,
-  TrackCsvError,
-  type FollowBody,
-  type TrackPoint as TrackPointDto,
-  type TrackPointInput,
+import type {
+  FollowBody,
+  TrackPoint as TrackPointDto,
+  TrackPointInput,
 } from '../../shared/schemas/track';
+import { csvCell, parseTrackCsv, TRACK_CSV_COLUMNS, TrackCsvError } from '../../shared/tracks/csv';
 import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';

@@ -11,6 +11,7 @@
 import { spawn } from 'node:child_process';
 import { copyFile, mkdir, readFile, rm, stat, truncate, writeFile } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
+import { mulberry32 } from '../../shared/physics';
 import { ffmpegPath, lastErrorLine, runTool } from './tools';
 
 /** Standard gravity, m/s² (3rd CGPM, 1901). */
@@ -93,21 +94,9 @@ export interface RenderedClip {
   truth: FlightTruth;
 }
 
-/** A small deterministic generator (mulberry32), so clips are the same on every run. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 /** Smooth value noise in [0, 1] on a lattice of `cell` pixels (bilinear, smoothstep-eased). */
 function valueNoise(seed: number, cell: number): (x: number, y: number) => number {
-  const r = rng(seed);
+  const r = mulberry32(seed);
   const size = 256;
   const lattice = new Float32Array(size * size).map(() => r());
   const at = (i: number, j: number): number => lattice[(((j % size) + size) % size) * size + (((i % size) + size) % size)]!;
@@ -368,7 +357,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   const scene = paintScene(width, height, groundY, seed, clutter);
   // Sensor noise: a table of roughly normal values (sum of four uniforms), read at a fresh random
   // offset each frame so the noise moves from frame to frame without a random draw per pixel.
-  const rand = rng(seed * 7919 + 1);
+  const rand = mulberry32(seed * 7919 + 1);
   const noiseLen = 1 << 20;
   const noise = new Int8Array(noiseLen);
   const spread = noiseSigma * Math.sqrt(3);

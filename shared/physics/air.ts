@@ -25,19 +25,25 @@ export interface Air {
   source: string;
 }
 
-/** Weather at the field; every field optional. */
+/**
+ * Weather at the field, with the names and units of a session's stored conditions; every field may
+ * be missing (undefined or null).
+ */
 export interface Conditions {
-  /** Air temperature t (°C), −40…60. */
-  temperatureC?: number;
+  /** Air temperature T (K), 233.15…333.15 (−40…60 °C). */
+  airTemperatureK?: number | null;
   /** Station pressure p (Pa), 30 000…110 000 (not the sea-level-reduced pressure of weather reports). */
-  pressurePa?: number;
+  airPressurePa?: number | null;
   /** Relative humidity h (%), 0…100. */
-  relativeHumidityPct?: number;
-  /** Altitude of the field above sea level (m), −500…10 000; gives p (and t) from the standard atmosphere when they are missing. */
-  altitudeM?: number;
+  relativeHumidityPct?: number | null;
+  /** Altitude of the field above sea level (m), −500…10 000; gives p (and T) from the standard atmosphere when they are missing. */
+  altitudeM?: number | null;
   /** Mole fraction of CO₂ (mol/mol); default 0.0004 as in CIPM-2007. */
-  co2MoleFraction?: number;
+  co2MoleFraction?: number | null;
 }
+
+/** Lowest and highest air temperature (K) the density and viscosity formulas here are used for: −40…60 °C. */
+export const AIR_TEMPERATURE_RANGE_K: readonly [number, number] = [233.15, 333.15];
 
 /**
  * Geopotential altitude H (m) of a geometric altitude z (m): H = r z / (r + z), r the ISA Earth radius.
@@ -118,8 +124,8 @@ export function humidAirDensity(temperatureK: number, pressurePa: number, relati
   return ((p * ma) / (z * CIPM.R * T)) * (1 - xv * (1 - CIPM.MV / ma));
 }
 
-function checkRange(name: string, value: number | undefined, lo: number, hi: number, unit: string): void {
-  if (value === undefined) return;
+function checkRange(name: string, value: number | null | undefined, lo: number, hi: number, unit: string): void {
+  if (value === undefined || value === null) return;
   if (!Number.isFinite(value) || value < lo || value > hi) {
     throw new PhysicsError('BAD_AIR', `${name} ${value} ${unit} is outside ${lo}…${hi} ${unit}: check the value and its unit.`, { field: name });
   }
@@ -132,32 +138,32 @@ function checkRange(name: string, value: number | undefined, lo: number, hi: num
  * atmosphere (or 101 325 Pa without an altitude); temperature from the standard atmosphere at the
  * altitude (15 °C at sea level); humidity 0 %. Density by CIPM-2007 ({@link humidAirDensity}),
  * viscosity by Sutherland ({@link sutherlandViscosity}).
- * @param conditions the weather (°C, Pa, %, m); see {@link Conditions} for ranges.
- * @returns the air with ρ (kg/m³) and μ (Pa·s), and a `source` line that says what was assumed.
+ * @param conditions the weather (K, Pa, %, m); see {@link Conditions} for ranges.
+ * @returns the air with ρ (kg/m³) and μ (Pa·s), and a `source` line (in °C, for people) that says what was assumed.
  */
 export function airFromConditions(conditions: Conditions = {}): Air {
-  checkRange('Temperature', conditions.temperatureC, -40, 60, '°C');
-  checkRange('Pressure', conditions.pressurePa, 30000, 110000, 'Pa');
+  const [tLo, tHi] = AIR_TEMPERATURE_RANGE_K;
+  checkRange('Temperature', conditions.airTemperatureK, tLo, tHi, 'K');
+  checkRange('Pressure', conditions.airPressurePa, 30000, 110000, 'Pa');
   checkRange('Relative humidity', conditions.relativeHumidityPct, 0, 100, '%');
   checkRange('Altitude', conditions.altitudeM, -500, 10000, 'm');
   checkRange('CO2 mole fraction', conditions.co2MoleFraction, 0, 0.01, 'mol/mol');
   const assumed: string[] = [];
-  const std = standardAtmosphere(conditions.altitudeM ?? 0);
-  let pressurePa = conditions.pressurePa;
+  const altitudeM = conditions.altitudeM ?? undefined;
+  const std = standardAtmosphere(altitudeM ?? 0);
+  let pressurePa = conditions.airPressurePa ?? undefined;
   if (pressurePa === undefined) {
     pressurePa = std.pressurePa;
-    assumed.push(conditions.altitudeM === undefined ? 'pressure 101 325 Pa' : `standard pressure at ${conditions.altitudeM} m`);
+    assumed.push(altitudeM === undefined ? 'pressure 101 325 Pa' : `standard pressure at ${altitudeM} m`);
   }
-  let temperatureK: number;
-  if (conditions.temperatureC === undefined) {
+  let temperatureK = conditions.airTemperatureK ?? undefined;
+  if (temperatureK === undefined) {
     temperatureK = std.temperatureK;
     assumed.push(`standard temperature ${(std.temperatureK - CELSIUS_ZERO_K).toFixed(1)} °C`);
-  } else {
-    temperatureK = conditions.temperatureC + CELSIUS_ZERO_K;
   }
   const relativeHumidityPct = conditions.relativeHumidityPct ?? 0;
-  if (conditions.relativeHumidityPct === undefined) assumed.push('dry air');
-  const densityKgM3 = humidAirDensity(temperatureK, pressurePa, relativeHumidityPct, conditions.co2MoleFraction);
+  if (conditions.relativeHumidityPct === undefined || conditions.relativeHumidityPct === null) assumed.push('dry air');
+  const densityKgM3 = humidAirDensity(temperatureK, pressurePa, relativeHumidityPct, conditions.co2MoleFraction ?? undefined);
   const what = `CIPM-2007 from ${(temperatureK - CELSIUS_ZERO_K).toFixed(1)} °C, ${Math.round(pressurePa)} Pa, ${relativeHumidityPct} % RH`;
   return {
     densityKgM3,
@@ -186,26 +192,28 @@ export function standardAir(): Air {
 
 /**
  * Air with a known density only (for example measured, or given in a track file); the viscosity
- * is taken at `temperatureC` (default 15 °C), which moves the Reynolds number by a few per cent at most.
+ * is taken at `temperatureK` (default 288.15 K, 15 °C), which moves the Reynolds number by a few per cent at most.
  * @param densityKgM3 ρ (kg/m³), 0.3…1.6.
+ * @param temperatureK T (K), 233.15…333.15.
  */
-export function airFromDensity(densityKgM3: number, temperatureC = 15): Air {
+export function airFromDensity(densityKgM3: number, temperatureK: number = ISA.temperatureK): Air {
+  const [tLo, tHi] = AIR_TEMPERATURE_RANGE_K;
   checkRange('Air density', densityKgM3, 0.3, 1.6, 'kg/m³');
-  checkRange('Temperature', temperatureC, -40, 60, '°C');
+  checkRange('Temperature', temperatureK, tLo, tHi, 'K');
   return {
     densityKgM3,
-    viscosityPaS: sutherlandViscosity(temperatureC + CELSIUS_ZERO_K),
-    temperatureK: temperatureC + CELSIUS_ZERO_K,
-    source: `given density ${densityKgM3} kg/m³ (viscosity at ${temperatureC} °C)`,
+    viscosityPaS: sutherlandViscosity(temperatureK),
+    temperatureK,
+    source: `given density ${densityKgM3} kg/m³ (viscosity at ${Number((temperatureK - CELSIUS_ZERO_K).toFixed(2))} °C)`,
   };
 }
 
 /**
  * Reynolds number of a ball, Re = ρ V D / μ.
- * @param speedMS V (m/s), air-relative. @param diameterM D (m). @param air ρ and μ.
+ * @param speedMps V (m/s), air-relative. @param diameterM D (m). @param air ρ and μ.
  */
-export function reynoldsNumber(speedMS: number, diameterM: number, air: Air): number {
-  return (air.densityKgM3 * Math.abs(speedMS) * diameterM) / air.viscosityPaS;
+export function reynoldsNumber(speedMps: number, diameterM: number, air: Air): number {
+  return (air.densityKgM3 * Math.abs(speedMps) * diameterM) / air.viscosityPaS;
 }
 
 /** Flow regime around a sphere, by Reynolds number. */

@@ -401,18 +401,100 @@ function bic(run: Run, n: number): number {
   return m * Math.log(rss / m) + run.names.length * Math.log(m);
 }
 
+/** Options of one fit with the defaults merged in. */
+type ResolvedFitOptions = typeof FIT_DEFAULTS & FitOptions;
+
 /**
- * Fit a flight model to a traced flight.
- * @param track samples t (s), x (m, along the flight, either direction), y (m, up from the ground); first sample at the release; at least 5.
- * @param options model, ball, air, wind (m/s), gravity (m/s²), loss, checks; see {@link FitOptions}.
- * @returns launch speed/angle/height, C_d/C_L with standard errors, the fitted flight to the ground
- *   and the metrics derived from it, goodness of fit, warnings; see {@link FitResult}.
- * @throws PhysicsError with a code: bad tracks (`TOO_FEW_POINTS`, `UNSORTED_TIMES`,
- *   `DUPLICATE_TIMES`, `NON_FINITE`, `LENGTH_MISMATCH`), `NEVER_RISES`, `SCALE_SUSPECT`,
- *   `MISSING_BALL`, `BAD_OPTION`, `FIT_FAILED`.
+ * What the stages of one fit share: the checked track, the ball and the air, the starting point,
+ * the warnings so far, and the running state of the least-squares runs.
  */
-export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
-  const o = withDefaults(FIT_DEFAULTS, options) as typeof FIT_DEFAULTS & FitOptions;
+interface FitStage {
+  o: ResolvedFitOptions;
+  prep: Prepared;
+  /** Number of traced points. */
+  n: number;
+  ball: BallProps | null;
+  air: Air;
+  /** κ = ρA/(2m) (1/m) of the ball in this air; 0 without a ball. */
+  kappa: number;
+  /** Gravity (m/s²) and wind (m/s) of the fit; the aerodynamic coefficients are parameters. */
+  base: MotionCoefficients;
+  init: InitialGuess;
+  /** Whether the loss is robust (anything but `linear`). */
+  robust: boolean;
+  /** The ball's C_d range, or the generic one, and its midpoint: the start and the prior's mean. */
+  cdRange: { min: number; max: number };
+  cd0: number;
+  /** x₀ (m), y₀ (m), vₓ₀ (m/s), v_y₀ (m/s) of the smoothing polynomials. */
+  launch0: number[];
+  warnings: FlightWarning[];
+  /** Soft-L1 scale (m); each robust run leaves its settled scale here for the next run. */
+  lossScale: number;
+  /** Iterations and residual evaluations over all runs so far. */
+  iterations: number;
+  evaluations: number;
+  /** Loss scale (m) re-estimated from residuals (m) during a robust run. */
+  adaptScale: (r: Float64Array) => number;
+}
+
+/** The flight parameters of the chosen run with their standard errors, and what derives from them. */
+interface FittedFlight {
+  model: FlightModel;
+  names: string[];
+  /** Covariance of the parameters (row-major, `names` order); null when the track cannot determine one. */
+  cov: Float64Array | null;
+  /** Release point (m, mirrored frame) and velocity (m/s). */
+  x0: number; y0: number; vx0: number; vy0: number;
+  speed: number; speedError: number | null; angleDegError: number | null; heightError: number | null;
+  cd: number | null; cdError: number | null;
+  cl: number | null; clError: number | null;
+  dragRate: number | null; dragRateError: number | null;
+  flight: FlightSummary;
+  errors: FitResult['errors'];
+  standardCarry: number;
+  vacuum: FitResult['vacuum'];
+  terminalSpeed: number | null;
+  dragToWeight: number | null;
+  reynolds: number | null;
+  regime: DragRegime | null;
+  nearDragCrisis: boolean | null;
+  rms: number;
+  noise: number;
+  outliers: number[];
+  trackEnd: number;
+  extrapolated: boolean;
+}
+
+/** A model with standard gravity and no prior on C_d. */
+function plainConfig(model: FlightModel): Config {
+  return { model, freeG: false, prior: null };
+}
+
+/**
+ * Loss scale from residuals: {@link LOSS_SCALE_SIGMAS} robust noise units, floored at {@link NOISE_FLOOR_M}.
+ * @param r residuals (m), x and y of each point in turn; @param n number of points.
+ * @returns the soft-L1 scale (m).
+ */
+function adaptedLossScale(r: Float64Array, n: number): number {
+  const d = new Float64Array(n);
+  for (let k = 0; k < n; k++) d[k] = Math.hypot(r[2 * k], r[2 * k + 1]);
+  return LOSS_SCALE_SIGMAS * Math.max(robustNoise(d), NOISE_FLOOR_M);
+}
+
+/**
+ * Staging: checks the options and the track, resolves the ball and the air, mirrors a flight that
+ * goes towards −x, and takes the starting point from robust cubic fits of x(t) and y(t). Two cheap
+ * checks refuse a track before any model runs: the secant estimate of gravity from the smoothed
+ * track (drag can move it by a factor of a few for light balls on short tracks, and a ping-pong
+ * ball with heavy topspin can look 8 g heavy, hence the band ×1/12…×12), and a ball that never rises.
+ * @param track samples t (s), x (m), y (m); see {@link fitFlight}.
+ * @param options see {@link FitOptions}: wind −60…60 m/s, gravity 0…30 m/s², rtol 1e-14…1e-4.
+ * @returns the state the later stages share, with an `AIR_ASSUMED` warning when no air was given.
+ * @throws PhysicsError `BAD_OPTION`, `MISSING_BALL`, `BAD_AIR`, the track's codes ({@link checkTrack}),
+ *   `SCALE_SUSPECT`, `NEVER_RISES`, `FIT_FAILED` for degenerate samples.
+ */
+function stageFit(track: Track, options: FitOptions): FitStage {
+  const o = withDefaults(FIT_DEFAULTS, options) as ResolvedFitOptions;
   if (!['auto', 'vacuum', 'linear', 'drag', 'drag-lift'].includes(o.model)) {
     throw new PhysicsError('BAD_OPTION', `Unknown model "${o.model}": use auto, vacuum, linear, drag or drag-lift.`);
   }
@@ -436,207 +518,257 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
   }
   if (!(air.densityKgM3 > 0) || !(air.viscosityPaS > 0)) throw new PhysicsError('BAD_AIR', 'The air needs a positive density and viscosity.');
   const kappa = ball ? dragFactor(ball, air) : 0;
-  // Validates wind and gravity with the same messages as the simulator.
-  const { c: base } = ((): { c: MotionCoefficients } => {
-    if (!Number.isFinite(o.windSpeed) || Math.abs(o.windSpeed) > 60) throw new PhysicsError('BAD_OPTION', `Wind ${o.windSpeed} m/s is not a wind speed between −60 and 60 m/s.`);
-    if (!Number.isFinite(o.gravity) || o.gravity <= 0 || o.gravity > 30) throw new PhysicsError('BAD_OPTION', `Gravity ${o.gravity} m/s² is not between 0 and 30 m/s².`);
-    return { c: { model: 'drag', k: 0, kl: 0, beta: 0, g: o.gravity, wind: o.windSpeed } };
-  })();
+  // Wind and gravity are refused with the same messages as the simulator's.
+  if (!Number.isFinite(o.windSpeed) || Math.abs(o.windSpeed) > 60) throw new PhysicsError('BAD_OPTION', `Wind ${o.windSpeed} m/s is not a wind speed between −60 and 60 m/s.`);
+  if (!Number.isFinite(o.gravity) || o.gravity <= 0 || o.gravity > 30) throw new PhysicsError('BAD_OPTION', `Gravity ${o.gravity} m/s² is not between 0 and 30 m/s².`);
+  const base: MotionCoefficients = { model: 'drag', k: 0, kl: 0, beta: 0, g: o.gravity, wind: o.windSpeed };
 
   const init = initialGuess(prep);
   const n = prep.n;
-  // Gross scale errors first: a cheap secant estimate of gravity from the smoothed track. Drag can
-  // move it by a factor of a few for light balls on short tracks, hence the wide band.
-  // (A ping-pong ball with heavy topspin can look 8 g heavy on a short track, hence ×12.)
   const gRatio = init.gApparent / o.gravity;
   if (gRatio > COARSE_SCALE_BAND || (gRatio > 0 && gRatio < 1 / COARSE_SCALE_BAND)) throw scaleError(gRatio, 'estimated from the smoothed track');
   const maxRise = Math.max(...Array.from(prep.ys).map((v) => v - prep.ys[0]));
   if (!o.allowDescending && init.vy0 <= 0 && maxRise <= 3 * init.noise) {
     throw new PhysicsError('NEVER_RISES', 'The ball never rises: no traced point is above the first one. Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
   }
-
-  const robust = o.loss !== 'linear';
-  let lossScale = LOSS_SCALE_SIGMAS * init.noise;
-  let iterations = 0, evaluations = 0;
-  const adaptScale = (r: Float64Array): number => {
-    const d = new Float64Array(n);
-    for (let k = 0; k < n; k++) d[k] = Math.hypot(r[2 * k], r[2 * k + 1]);
-    return LOSS_SCALE_SIGMAS * Math.max(robustNoise(d), NOISE_FLOOR_M);
-  };
-  const runFit = (cfg: Config, start: number[], lmOptions: LmOptions = {}, rtol: number = o.rtol): Run => {
-    const problem = makeProblem(prep, cfg, base, kappa, rtol);
-    let lm: LmResult;
-    try {
-      lm = levenbergMarquardt(problem, start, { loss: o.loss, lossScale, maxIterations: o.maxIterations, ...lmOptions });
-    } catch (e) {
-      if (isPhysicsError(e)) throw e;
-      throw new PhysicsError('FIT_FAILED', `The ${cfg.model} model could not be started from this track (the integration failed at the first guess). Check that the samples are one flight, in metres and seconds.`);
-    }
-    iterations += lm.iterations;
-    evaluations += lm.evaluations;
-    if (robust && (lmOptions.loss ?? o.loss) !== 'linear') lossScale = lm.lossScale;
-    return { config: cfg, lm, names: paramNames(cfg) };
-  };
-
-  const launch0 = [init.x0, init.y0, init.vx0, init.vy0];
   const cdRange = ball?.cdRange ?? GENERIC_CD_RANGE;
-  const cd0 = 0.5 * (cdRange.min + cdRange.max);
-  // Two stages for every model: plain least squares from the smoothing polynomial's launch, loosely
-  // converged, then the robust loss (its scale settled on the way) from there. Note: a robust loss
-  // far from the solution has almost no curvature along the residuals and sends the first steps
-  // wild (measured: v 22 → 84 m/s, C_d → −0.48); and a launch-only first stage is biased when the
-  // ball carries lift (measured: 27 evaluations per drag-lift fit instead of 13).
-  const stageOptions: LmOptions = { loss: 'linear', ftol: 1e-4 };
-  const staged = (cfg: Config, start: number[]): Run => {
-    // The stage only provides a start: a looser integration saves a third of its steps.
-    const stage = runFit(cfg, start, stageOptions, Math.max(o.rtol, 1e-7));
-    return runFit(cfg, Array.from(stage.lm.p), robust ? { adaptScale } : {});
+  return {
+    o, prep, n, ball, air, kappa, base, init,
+    robust: o.loss !== 'linear',
+    cdRange,
+    cd0: 0.5 * (cdRange.min + cdRange.max),
+    launch0: [init.x0, init.y0, init.vx0, init.vy0],
+    warnings,
+    lossScale: LOSS_SCALE_SIGMAS * init.noise,
+    iterations: 0,
+    evaluations: 0,
+    adaptScale: (r) => adaptedLossScale(r, n),
   };
-  const plain = (model: FlightModel): Config => ({ model, freeG: false, prior: null });
-  let chosen: Run;
-  let selection: FitResult['modelSelection'] = null;
-  if (o.model === 'vacuum') {
-    chosen = staged(plain('vacuum'), launch0);
-  } else if (o.model === 'linear') {
+}
+
+/**
+ * One Levenberg–Marquardt run of a model configuration ({@link levenbergMarquardt}), counted in the stage.
+ * @param s the fit's shared state; a robust run leaves its settled loss scale (m) there.
+ * @param cfg model, free gravity, prior on C_d.
+ * @param start parameters in {@link paramNames} order: x₀, y₀ (m), vₓ₀, v_y₀ (m/s), then β (1/s) or C_d, C_L, g (m/s²).
+ * @param lmOptions overrides of the solver's options (loss, tolerances, scale adaptation).
+ * @param rtol integration tolerance inside the model (relative; m and m/s); default the fit's.
+ * @returns the run: configuration, solver result and parameter names.
+ * @throws PhysicsError `FIT_FAILED` when the model cannot be integrated at the start.
+ */
+function runFit(s: FitStage, cfg: Config, start: number[], lmOptions: LmOptions = {}, rtol: number = s.o.rtol): Run {
+  const problem = makeProblem(s.prep, cfg, s.base, s.kappa, rtol);
+  let lm: LmResult;
+  try {
+    lm = levenbergMarquardt(problem, start, { loss: s.o.loss, lossScale: s.lossScale, maxIterations: s.o.maxIterations, ...lmOptions });
+  } catch (e) {
+    if (isPhysicsError(e)) throw e;
+    throw new PhysicsError('FIT_FAILED', `The ${cfg.model} model could not be started from this track (the integration failed at the first guess). Check that the samples are one flight, in metres and seconds.`);
+  }
+  s.iterations += lm.iterations;
+  s.evaluations += lm.evaluations;
+  if (s.robust && (lmOptions.loss ?? s.o.loss) !== 'linear') s.lossScale = lm.lossScale;
+  return { config: cfg, lm, names: paramNames(cfg) };
+}
+
+/**
+ * A model fitted in two runs: plain least squares from the start, loosely converged (ftol 1e-4,
+ * integration at rtol ≥ 1e-7, which saves a third of its steps), then the fit's own loss from
+ * there with its scale adapted on the way.
+ * Note: a robust loss far from the solution has almost no curvature along the residuals and sends
+ * the first steps wild (measured: v 22 → 84 m/s, C_d → −0.48); and a launch-only first run is
+ * biased when the ball carries lift (measured: 27 evaluations per drag-lift fit instead of 13).
+ * @param s the fit's shared state; @param cfg the model; @param start as in {@link runFit}.
+ * @returns the second run.
+ */
+function stagedFit(s: FitStage, cfg: Config, start: number[]): Run {
+  const stage = runFit(s, cfg, start, { loss: 'linear', ftol: 1e-4 }, Math.max(s.o.rtol, 1e-7));
+  return runFit(s, cfg, Array.from(stage.lm.p), s.robust ? { adaptScale: s.adaptScale } : {});
+}
+
+/**
+ * Model choice: fits the requested model, or for `auto` drag-lift and drag and keeps drag-lift only
+ * on positive evidence, ΔBIC > 2 (Schwarz, Ann. Stat. 6 (1978) 461; Kass & Raftery, JASA 90 (1995) 773).
+ * The Wald statistic z = C_L/σ(C_L) approximates the deviance gain of the lift term for nested
+ * models, so ΔBIC ≈ z² − ln m (m = 2n residuals); beyond z² − ln m > 27 the drag fit cannot win and is skipped.
+ * @param s the fit's shared state (start, ball's C_d range, wind (m/s) for the linear model's start).
+ * @returns the chosen run, and the BIC of both models for `auto` (null otherwise).
+ */
+function chooseModel(s: FitStage): { chosen: Run; selection: FitResult['modelSelection'] } {
+  const { o, init, n, launch0, cd0, robust } = s;
+  if (o.model === 'vacuum') return { chosen: stagedFit(s, plainConfig('vacuum'), launch0), selection: null };
+  if (o.model === 'linear') {
     const u0 = init.vx0 - o.windSpeed;
     const beta0 = u0 > 0 && init.ax0 < 0 ? Math.min(-init.ax0 / u0, 10) : 0.1;
-    chosen = staged(plain('linear'), [...launch0, beta0]);
-  } else if (o.model === 'drag') {
-    chosen = staged(plain('drag'), [...launch0, cd0]);
-  } else {
-    const dl = staged(plain('drag-lift'), [...launch0, cd0, 0]);
-    chosen = dl;
-    if (o.model === 'auto') {
-      const bDl = bic(dl, n);
-      // Wald statistic of C_L: for nested models it approximates the deviance gain of the lift term,
-      // so ΔBIC ≈ z² − ln m. Far beyond the threshold the drag fit cannot win and is skipped.
-      const { cov } = covarianceOf(dl, n);
-      const iCl = dl.names.indexOf('cl');
-      const sdCl = stdErr(cov, dl.names.length, iCl);
-      const z = sdCl ? dl.lm.p[iCl] / sdCl : 0;
-      if (dl.lm.converged && z * z > Math.log(2 * n) + 2 + 25) {
-        selection = { criterion: 'BIC', drag: null, dragLift: bDl, chosen: 'drag-lift' };
-      } else {
-        let drag: Run;
-        try {
-          drag = runFit(plain('drag'), Array.from(dl.lm.p).slice(0, 5), { adaptScale: robust ? adaptScale : undefined });
-        } catch (e) {
-          // The drag-lift fit wandered somewhere the drag model cannot start from: start afresh.
-          if (!isPhysicsError(e)) throw e;
-          drag = staged(plain('drag'), [...launch0, cd0]);
-        }
-        const bDrag = bic(drag, n);
-        chosen = dl.lm.converged && bDl < bDrag - 2 ? dl : drag;
-        selection = { criterion: 'BIC', drag: bDrag, dragLift: bDl, chosen: chosen.config.model };
-      }
+    return { chosen: stagedFit(s, plainConfig('linear'), [...launch0, beta0]), selection: null };
+  }
+  if (o.model === 'drag') return { chosen: stagedFit(s, plainConfig('drag'), [...launch0, cd0]), selection: null };
+  const dl = stagedFit(s, plainConfig('drag-lift'), [...launch0, cd0, 0]);
+  if (o.model !== 'auto') return { chosen: dl, selection: null };
+  const bDl = bic(dl, n);
+  const { cov } = covarianceOf(dl, n);
+  const iCl = dl.names.indexOf('cl');
+  const sdCl = stdErr(cov, dl.names.length, iCl);
+  const z = sdCl ? dl.lm.p[iCl] / sdCl : 0;
+  if (dl.lm.converged && z * z > Math.log(2 * n) + 2 + 25) {
+    return { chosen: dl, selection: { criterion: 'BIC', drag: null, dragLift: bDl, chosen: 'drag-lift' } };
+  }
+  let drag: Run;
+  try {
+    drag = runFit(s, plainConfig('drag'), Array.from(dl.lm.p).slice(0, 5), { adaptScale: robust ? s.adaptScale : undefined });
+  } catch (e) {
+    // The drag-lift fit wandered somewhere the drag model cannot start from: start afresh.
+    if (!isPhysicsError(e)) throw e;
+    drag = stagedFit(s, plainConfig('drag'), [...launch0, cd0]);
+  }
+  const bDrag = bic(drag, n);
+  const chosen = dl.lm.converged && bDl < bDrag - 2 ? dl : drag;
+  return { chosen, selection: { criterion: 'BIC', drag: bDrag, dragLift: bDl, chosen: chosen.config.model } };
+}
+
+/**
+ * Model choice, second part: a Gaussian prior on C_d, mean the middle of the ball's range and
+ * σ a quarter of its width, refitted in when the track alone determines C_d less well than that
+ * (or always, or never, by `cdPrior`); adds `CD_PRIOR_USED` when it was used.
+ * @param s the fit's shared state; @param chosen the run of {@link chooseModel}.
+ * @returns the run to keep, and the prior (null for models without C_d).
+ */
+function applyCdPrior(s: FitStage, chosen: Run): { chosen: Run; cdPrior: FitResult['cdPrior'] } {
+  if (chosen.config.model !== 'drag' && chosen.config.model !== 'drag-lift') return { chosen, cdPrior: null };
+  const { cdRange, ball, n } = s;
+  const mean = s.cd0, sd = (cdRange.max - cdRange.min) / 4;
+  const source = ball?.cdRange ? `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}` : `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
+  const cdPrior = { mean, sd, used: false, source };
+  if (s.o.cdPrior === 'off') return { chosen, cdPrior };
+  const { cov } = covarianceOf(chosen, n);
+  const iCd = chosen.names.indexOf('cd');
+  const sdData = stdErr(cov, chosen.names.length, iCd);
+  if (s.o.cdPrior !== 'always' && sdData !== null && sdData <= sd) return { chosen, cdPrior };
+  const { noise } = runNoise(chosen, n);
+  const withPrior = runFit(s, { ...chosen.config, prior: { mean, sd, noise } }, Array.from(chosen.lm.p));
+  cdPrior.used = true;
+  s.warnings.push({
+    code: 'CD_PRIOR_USED',
+    message: `The track ${sdData === null ? 'cannot determine' : `determines C_d only to ±${fmtNum(sdData, 2)}`}: ${source} was used as a prior. Trace more of the flight (ideally to the landing) to measure it.`,
+  });
+  return { chosen: withPrior, cdPrior };
+}
+
+/**
+ * Refuses a fitted release that goes down (unless allowed, then warns `NEVER_RISES`) or lies more
+ * than three noise units or standard errors below the ground.
+ * @param s the fit's shared state; @param chosen the kept run; @param cov its covariance (`names` order).
+ * @throws PhysicsError `NEVER_RISES`, `FIT_FAILED`.
+ */
+function checkRelease(s: FitStage, chosen: Run, cov: Float64Array | null): void {
+  const p = chosen.lm.p;
+  const y0 = p[1], vy0 = p[3];
+  if (!s.o.allowDescending && vy0 <= 0) {
+    throw new PhysicsError('NEVER_RISES', 'The fitted flight never rises (it leaves the release going down). Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
+  }
+  if (vy0 <= 0) s.warnings.push({ code: 'NEVER_RISES', message: 'The ball leaves the release going down: the apex is the release point.' });
+  if (y0 < 0 && y0 < -3 * Math.max(s.init.noise, stdErr(cov, chosen.names.length, 1) ?? 0)) {
+    throw new PhysicsError('FIT_FAILED', `The fitted release is ${fmtNum(-y0, 2)} m below the ground: check that y is measured up from the ground and the level line of the calibration.`);
+  }
+}
+
+/**
+ * Scale check: the chosen model with gravity free, started from the fit, gives the factor
+ * g_fitted / g and its standard error. Near a consistent scale one Gauss–Newton step settles it
+ * (g enters almost linearly over a few per cent), and so it does when gravity is too poorly
+ * determined for the check to say anything; a clear deviation (over 10 % and 4σ) gets a full run so
+ * that the message quotes the right factor. A deviation over 20 % and 4σ is a scale error unless
+ * the drag-lift model with standard gravity explains the flight as well (BIC within 2); over 3 %
+ * and 2.5σ it is a `SCALE_DISAGREES` warning; σ over 10 % leaves the check `inconclusive` with
+ * `SCALE_UNCHECKED`.
+ * @param s the fit's shared state; @param chosen the kept run.
+ * @returns the factor (dimensionless, 1 = agrees), its standard error and the verdict; null when `scaleCheck` is off.
+ * @throws PhysicsError `SCALE_SUSPECT` when the calibration, not the model, must be wrong.
+ */
+function checkScale(s: FitStage, chosen: Run): ScaleCheck | null {
+  const { o, n, ball, cd0 } = s;
+  if (!o.scaleCheck) return null;
+  const p = chosen.lm.p;
+  const model = chosen.config.model;
+  const gCfg: Config = { ...chosen.config, freeG: true };
+  const iG = paramNames(gCfg).indexOf('g');
+  const start = [...Array.from(p), o.gravity];
+  const step = gaussNewtonStep(makeProblem(s.prep, gCfg, s.base, s.kappa, o.rtol), start, { loss: o.loss, lossScale: s.lossScale });
+  s.evaluations++;
+  let factor = NaN, gErr: number | null = null;
+  if (step) {
+    factor = (o.gravity + step.delta[iG]) / o.gravity;
+    const run: Run = { config: gCfg, names: paramNames(gCfg), lm: { ...chosen.lm, r: step.r, weights: step.weights, jtwj: step.jtwj, p: Float64Array.from(start) } };
+    gErr = stdErr(covarianceOf(run, n).cov, run.names.length, iG);
+  }
+  const clearlyOff = step && gErr !== null && Math.abs(factor - 1) > 0.1 && Math.abs(factor - 1) > 4 * (gErr / o.gravity);
+  let gRun: Run | null = null;
+  if (!step || clearlyOff) {
+    try {
+      gRun = runFit(s, gCfg, start);
+      factor = gRun.lm.p[iG] / o.gravity;
+      gErr = stdErr(covarianceOf(gRun, n).cov, gRun.names.length, iG);
+    } catch (e) {
+      if (!isPhysicsError(e)) throw e;
+      gErr = null;
     }
   }
-
-  // Prior on C_d when the track alone determines it less well than the catalogue range does.
-  let priorInfo: FitResult['cdPrior'] = null;
-  if (chosen.config.model === 'drag' || chosen.config.model === 'drag-lift') {
-    const mean = cd0, sd = (cdRange.max - cdRange.min) / 4;
-    const source = ball?.cdRange ? `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}` : `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
-    priorInfo = { mean, sd, used: false, source };
-    if (o.cdPrior !== 'off') {
-      const { cov } = covarianceOf(chosen, n);
-      const iCd = chosen.names.indexOf('cd');
-      const sdData = stdErr(cov, chosen.names.length, iCd);
-      if (o.cdPrior === 'always' || sdData === null || sdData > sd) {
-        const { noise } = runNoise(chosen, n);
-        const withPrior = runFit({ ...chosen.config, prior: { mean, sd, noise } }, Array.from(chosen.lm.p));
-        chosen = withPrior;
-        priorInfo.used = true;
-        warnings.push({
-          code: 'CD_PRIOR_USED',
-          message: `The track ${sdData === null ? 'cannot determine' : `determines C_d only to ±${fmtNum(sdData, 2)}`}: ${source} was used as a prior. Trace more of the flight (ideally to the landing) to measure it.`,
-        });
+  const error = gErr === null || !Number.isFinite(factor) ? null : gErr / o.gravity;
+  const dev = Math.abs(factor - 1);
+  let status: ScaleCheck['status'] = 'agrees';
+  if (error === null || error > 0.1) {
+    status = 'inconclusive';
+    s.warnings.push({ code: 'SCALE_UNCHECKED', message: 'The track is too short to cross-check the calibration against gravity; trust the calibration points alone.' });
+  } else if (dev > 0.2 && dev > 4 * error) {
+    // A model without lift (or without air) shifts the gravity it fits by whatever force it leaves
+    // out: blame the calibration only when the drag-lift model with standard gravity cannot do as well.
+    let explainedByModel = false;
+    if (model !== 'drag-lift' && ball && gRun) {
+      try {
+        const rich = stagedFit(s, plainConfig('drag-lift'), [p[0], p[1], p[2], p[3], model === 'drag' ? p[4] : cd0, 0]);
+        explainedByModel = bic(rich, n) <= bic(gRun, n) + 2;
+      } catch (e) {
+        if (!isPhysicsError(e)) throw e;
       }
     }
-  }
+    if (!explainedByModel) {
+      throw scaleError(factor, 'from a fit with gravity free',
+        model === 'drag-lift' || ball ? '' : `; or the ${model} model leaves out the air's force on this ball: give the ball and fit with a drag model`);
+    }
+    status = 'disagrees';
+    s.warnings.push({
+      code: 'SCALE_DISAGREES',
+      message: `Gravity fitted with the ${model} model is ${fmtNum(dev * 100, 2)} % ${factor > 1 ? 'above' : 'below'} standard, but the drag-lift model explains the flight as well with standard gravity: the ball carries lift (spin) or drag that the ${model} model leaves out. Fit with the auto or drag-lift model.`,
+    });
+  } else if (dev > 0.03 && dev > 2.5 * error) {
+    status = 'disagrees';
+    s.warnings.push({
+      code: 'SCALE_DISAGREES',
+      message: `Gravity fitted from the flight is ${fmtNum(dev * 100, 2)} % ${factor > 1 ? 'above' : 'below'} standard (±${fmtNum(error * 100, 2)} %): the calibration scale may be off by that much${model === 'drag-lift' ? '' : ', or the ball carries lift (spin) — try the drag-lift model'}. Re-check the reference distance and the frame rate.`,
+    });
+  } else if (error > 0.03) status = 'inconclusive';
+  return { factor, error, status };
+}
 
+/**
+ * Uncertainty: the fitted flight to the ground and in standard air, with standard errors of the
+ * parameters from the covariance and of the derived metrics through the variational equations
+ * ({@link derivedWithErrors}); launch speed and angle errors by the delta method; terminal speed
+ * √(g/(κC_d)) (m/s) or g/β, drag over weight at launch, Reynolds number and drag regime; the RMS
+ * distance of the points (m), the robust noise (m) and the outliers beyond {@link OUTLIER_SIGMAS}.
+ * The standard-air carry scales β by the viscosity ratio (Stokes: b = 3πμD).
+ * @param s the fit's shared state; @param chosen the kept run; @param cov its covariance (`names` order).
+ * @returns the fitted flight and its errors (m, s, m/s, degrees).
+ * @throws PhysicsError `FIT_FAILED` when the fitted flight does not come down to the ground.
+ */
+function estimateUncertainty(s: FitStage, chosen: Run, cov: Float64Array | null): FittedFlight {
+  const { o, n, ball, air, kappa, prep } = s;
   const names = chosen.names;
   const np = names.length;
   const p = chosen.lm.p;
-  const { cov } = covarianceOf(chosen, n);
   const idx = (name: string) => names.indexOf(name);
   const model = chosen.config.model;
   const [x0, y0, vx0, vy0] = [p[0], p[1], p[2], p[3]];
-  if (!o.allowDescending && vy0 <= 0) {
-    throw new PhysicsError('NEVER_RISES', 'The fitted flight never rises (it leaves the release going down). Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
-  }
-  if (vy0 <= 0) warnings.push({ code: 'NEVER_RISES', message: 'The ball leaves the release going down: the apex is the release point.' });
-  if (y0 < 0 && y0 < -3 * Math.max(init.noise, stdErr(cov, np, 1) ?? 0)) {
-    throw new PhysicsError('FIT_FAILED', `The fitted release is ${fmtNum(-y0, 2)} m below the ground: check that y is measured up from the ground and the level line of the calibration.`);
-  }
-
-  // Scale check: the same model with gravity free, started from the fit. Near a consistent scale
-  // one Gauss–Newton step settles it (g enters almost linearly over a few per cent), and so it does
-  // when gravity is too poorly determined for the check to say anything; a clear, large deviation
-  // gets a full run so that the message quotes the right factor.
-  let scaleCheck: ScaleCheck | null = null;
-  if (o.scaleCheck) {
-    const gCfg: Config = { ...chosen.config, freeG: true };
-    const iG = paramNames(gCfg).indexOf('g');
-    const start = [...Array.from(p), o.gravity];
-    const step = gaussNewtonStep(makeProblem(prep, gCfg, base, kappa, o.rtol), start, { loss: o.loss, lossScale });
-    evaluations++;
-    let factor = NaN, gErr: number | null = null;
-    if (step) {
-      factor = (o.gravity + step.delta[iG]) / o.gravity;
-      const run: Run = { config: gCfg, names: paramNames(gCfg), lm: { ...chosen.lm, r: step.r, weights: step.weights, jtwj: step.jtwj, p: Float64Array.from(start) } };
-      gErr = stdErr(covarianceOf(run, n).cov, run.names.length, iG);
-    }
-    const clearlyOff = step && gErr !== null && Math.abs(factor - 1) > 0.1 && Math.abs(factor - 1) > 4 * (gErr / o.gravity);
-    let gRun: Run | null = null;
-    if (!step || clearlyOff) {
-      try {
-        gRun = runFit(gCfg, start);
-        factor = gRun.lm.p[iG] / o.gravity;
-        gErr = stdErr(covarianceOf(gRun, n).cov, gRun.names.length, iG);
-      } catch (e) {
-        if (!isPhysicsError(e)) throw e;
-        gErr = null;
-      }
-    }
-    const error = gErr === null || !Number.isFinite(factor) ? null : gErr / o.gravity;
-    const dev = Math.abs(factor - 1);
-    let status: ScaleCheck['status'] = 'agrees';
-    if (error === null || error > 0.1) {
-      status = 'inconclusive';
-      warnings.push({ code: 'SCALE_UNCHECKED', message: 'The track is too short to cross-check the calibration against gravity; trust the calibration points alone.' });
-    } else if (dev > 0.2 && dev > 4 * error) {
-      // A model without lift (or without air) shifts the gravity it fits by whatever force it leaves
-      // out: blame the calibration only when the drag-lift model with standard gravity cannot do as well.
-      let explainedByModel = false;
-      if (model !== 'drag-lift' && ball && gRun) {
-        try {
-          const rich = staged(plain('drag-lift'), [p[0], p[1], p[2], p[3], model === 'drag' ? p[4] : cd0, 0]);
-          explainedByModel = bic(rich, n) <= bic(gRun, n) + 2;
-        } catch (e) {
-          if (!isPhysicsError(e)) throw e;
-        }
-      }
-      if (!explainedByModel) {
-        throw scaleError(factor, 'from a fit with gravity free',
-          model === 'drag-lift' || ball ? '' : `; or the ${model} model leaves out the air's force on this ball: give the ball and fit with a drag model`);
-      }
-      status = 'disagrees';
-      warnings.push({
-        code: 'SCALE_DISAGREES',
-        message: `Gravity fitted with the ${model} model is ${fmtNum(dev * 100, 2)} % ${factor > 1 ? 'above' : 'below'} standard, but the drag-lift model explains the flight as well with standard gravity: the ball carries lift (spin) or drag that the ${model} model leaves out. Fit with the auto or drag-lift model.`,
-      });
-    } else if (dev > 0.03 && dev > 2.5 * error) {
-      status = 'disagrees';
-      warnings.push({
-        code: 'SCALE_DISAGREES',
-        message: `Gravity fitted from the flight is ${fmtNum(dev * 100, 2)} % ${factor > 1 ? 'above' : 'below'} standard (±${fmtNum(error * 100, 2)} %): the calibration scale may be off by that much${model === 'drag-lift' ? '' : ', or the ball carries lift (spin) — try the drag-lift model'}. Re-check the reference distance and the frame rate.`,
-      });
-    } else if (error > 0.03) status = 'inconclusive';
-    scaleCheck = { factor, error, status };
-  }
-
-  // Derived flight and its standard errors through the variational equations.
   const cd = idx('cd') >= 0 ? p[idx('cd')] : null;
   const cl = idx('cl') >= 0 ? p[idx('cl')] : null;
   const beta = idx('beta') >= 0 ? p[idx('beta')] : null;
@@ -647,7 +779,7 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
   const stdKappa = ball ? dragFactor(ball, stdAir) : 0;
   try {
     derived = derivedWithErrors(coeffs, kappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
-    const stdBeta = beta === null ? 0 : (beta * stdAir.viscosityPaS) / air.viscosityPaS; // Stokes: b = 3πμD
+    const stdBeta = beta === null ? 0 : (beta * stdAir.viscosityPaS) / air.viscosityPaS;
     const stdCoeffs: MotionCoefficients = { model, k: stdKappa * (cd ?? 0), kl: stdKappa * (cl ?? 0), beta: stdBeta, g: STANDARD_GRAVITY, wind: 0 };
     std = derivedWithErrors(stdCoeffs, stdKappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
   } catch (e) {
@@ -684,15 +816,37 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
   const { d, noise } = runNoise(chosen, n);
   let ss = 0;
   for (let k = 0; k < n; k++) ss += d[k] * d[k];
-  const rms = Math.sqrt(ss / n);
   const outliers: number[] = [];
-  if (robust) for (let k = 0; k < n; k++) if (d[k] > OUTLIER_SIGMAS * Math.SQRT2 * noise) outliers.push(k + 1);
+  if (s.robust) for (let k = 0; k < n; k++) if (d[k] > OUTLIER_SIGMAS * Math.SQRT2 * noise) outliers.push(k + 1);
   const trackEnd = prep.tau[n - 1];
-  const extrapolated = trackEnd < 0.95 * flight.flightTime;
-  const cdErr = stdErr(cov, np, idx('cd'));
-  const clErr = stdErr(cov, np, idx('cl'));
+  return {
+    model, names, cov, x0, y0, vx0, vy0,
+    speed, speedError: propagate(cov, gradSpeed), angleDegError: propagate(cov, gradAngle), heightError: stdErr(cov, np, 1),
+    cd, cdError: stdErr(cov, np, idx('cd')),
+    cl, clError: stdErr(cov, np, idx('cl')),
+    dragRate: beta, dragRateError: stdErr(cov, np, idx('beta')),
+    flight,
+    errors: { ...derived.errors, standardCarry: std.errors.carry },
+    standardCarry: std.summary.carry,
+    vacuum: { carry: vac.carry, apexHeight: vac.apexHeight, flightTime: vac.flightTime },
+    terminalSpeed, dragToWeight, reynolds, regime, nearDragCrisis,
+    rms: Math.sqrt(ss / n), noise, outliers, trackEnd,
+    extrapolated: trackEnd < 0.95 * flight.flightTime,
+  };
+}
 
-  // Warnings a coach or analyst can act on.
+/**
+ * Warnings a coach or analyst can act on, about the fitted values: not converged, negative drag,
+ * C_d more than 2σ outside the ball's typical range (unless the prior set it), an extrapolated
+ * landing, outliers set aside, poorly determined C_L (σ > 0.15) or launch speed (σ > 10 %),
+ * |C_L| > 0.5 (spinning balls reach |C_L| ≲ 0.4, common practice), a Reynolds number near the
+ * ball's drag crisis, and linear drag above Re 10³.
+ * @param s the fit's shared state (the warnings are added to it); @param chosen the kept run;
+ * @param f its fitted flight; @param cdPrior the prior on C_d, when the model has C_d.
+ */
+function addFitWarnings(s: FitStage, chosen: Run, f: FittedFlight, cdPrior: FitResult['cdPrior']): void {
+  const { warnings, ball } = s;
+  const { model, cd, cdError: cdErr, dragRate: beta, cl, clError: clErr, flight, trackEnd, outliers, reynolds } = f;
   if (!chosen.lm.converged) {
     warnings.push({ code: 'NOT_CONVERGED', message: `The fit stopped without converging (${chosen.lm.stopReason}); treat the numbers as rough and check the track for points from another object.` });
   }
@@ -702,13 +856,13 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
   if (beta !== null && beta < 0) {
     warnings.push({ code: 'NEGATIVE_CD', message: `The fitted drag rate is negative (${fmtNum(beta, 2)} 1/s): the ball would speed up by itself. Check the calibration, the wind and the traced points.` });
   }
-  if (cd !== null && cd >= 0 && ball?.cdRange && cdErr !== null && !priorInfo?.used) {
+  if (cd !== null && cd >= 0 && ball?.cdRange && cdErr !== null && !cdPrior?.used) {
     const { min, max } = ball.cdRange;
     if (cd < min - 2 * cdErr || cd > max + 2 * cdErr) {
       warnings.push({ code: 'CD_OUTSIDE_RANGE', message: `C_d = ${fmtNum(cd, 3)} ± ${fmtNum(cdErr, 2)} lies outside the typical ${min}–${max} for ${ball.name ?? 'this ball'}: check the ball, the air density and the wind; a knuckling, wobbling or tumbling ball can also do this.` });
     }
   }
-  if (extrapolated) {
+  if (f.extrapolated) {
     warnings.push({ code: 'EXTRAPOLATED', message: `The track ends ${fmtNum(trackEnd, 3)} s after the release, ${Math.round((100 * trackEnd) / flight.flightTime)} % of the ${fmtNum(flight.flightTime, 3)} s flight: carry, landing and hang time are extrapolated with the fitted model.` });
   }
   if (outliers.length > 0) {
@@ -718,45 +872,71 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
   if (clErr !== null && clErr > 0.15) {
     warnings.push({ code: 'POORLY_DETERMINED', message: `The lift coefficient is poorly determined (±${fmtNum(clErr, 2)}): trace more of the flight, or use the drag model.` });
   }
-  const speedErr = propagate(cov, gradSpeed);
-  if (speedErr !== null && speedErr > 0.1 * speed) {
-    warnings.push({ code: 'POORLY_DETERMINED', message: `The launch speed is poorly determined (±${fmtNum(speedErr, 2)} m/s): trace more frames after the release.` });
+  if (f.speedError !== null && f.speedError > 0.1 * f.speed) {
+    warnings.push({ code: 'POORLY_DETERMINED', message: `The launch speed is poorly determined (±${fmtNum(f.speedError, 2)} m/s): trace more frames after the release.` });
   }
   if (cl !== null && Math.abs(cl) > 0.5) {
     warnings.push({ code: 'LARGE_LIFT', message: `The lift coefficient ${fmtNum(cl, 2)} is larger than spinning balls usually reach (|C_L| ≲ 0.4): check the calibration's level line and the wind.` });
   }
-  if (nearDragCrisis && (model === 'drag' || model === 'drag-lift')) {
+  if (f.nearDragCrisis && (model === 'drag' || model === 'drag-lift')) {
     warnings.push({ code: 'NEAR_DRAG_CRISIS', message: `The Reynolds number at launch (${fmtNum(reynolds!, 2)}) is near this ball's drag crisis: C_d may change during the flight, and the fitted value is an average over it.` });
   }
   if (model === 'linear' && reynolds !== null && reynolds > 1e3) {
     warnings.push({ code: 'LINEAR_DRAG_UNUSUAL', message: `Linear drag holds for slow, small objects (Reynolds number below about 1); at ${fmtNum(reynolds, 2)} this ball's drag grows with the square of its speed: prefer the drag model.` });
   }
+}
 
-  const aero: FlightAero = { model, ...(cd !== null ? { cd } : {}), ...(cl !== null ? { cl } : {}), ...(beta !== null ? { dragRate: beta } : {}) };
-  const launch: Launch = { speed, angleDeg: (Math.atan2(vy0, vx0) * 180) / Math.PI, height: y0 };
+/**
+ * Fit a flight model to a traced flight.
+ *
+ * Stages: {@link stageFit} (checks and starting point), {@link chooseModel} and {@link applyCdPrior}
+ * (model choice), {@link checkRelease}, {@link checkScale} (calibration against gravity),
+ * {@link estimateUncertainty} (derived flight and standard errors), {@link addFitWarnings}.
+ * @param track samples t (s), x (m, along the flight, either direction), y (m, up from the ground); first sample at the release; at least 5.
+ * @param options model, ball, air, wind (m/s), gravity (m/s²), loss, checks; see {@link FitOptions}.
+ * @returns launch speed/angle/height, C_d/C_L with standard errors, the fitted flight to the ground
+ *   and the metrics derived from it, goodness of fit, warnings; see {@link FitResult}.
+ * @throws PhysicsError with a code: bad tracks (`TOO_FEW_POINTS`, `UNSORTED_TIMES`,
+ *   `DUPLICATE_TIMES`, `NON_FINITE`, `LENGTH_MISMATCH`), `NEVER_RISES`, `SCALE_SUSPECT`,
+ *   `MISSING_BALL`, `BAD_OPTION`, `FIT_FAILED`.
+ */
+export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
+  const s = stageFit(track, options);
+  const choice = chooseModel(s);
+  const { chosen, cdPrior } = applyCdPrior(s, choice.chosen);
+  const { cov } = covarianceOf(chosen, s.n);
+  checkRelease(s, chosen, cov);
+  const scaleCheck = checkScale(s, chosen);
+  const f = estimateUncertainty(s, chosen, cov);
+  addFitWarnings(s, chosen, f, cdPrior);
+
+  const { o, prep, ball, air } = s;
+  const np = f.names.length;
+  const aero: FlightAero = { model: f.model, ...(f.cd !== null ? { cd: f.cd } : {}), ...(f.cl !== null ? { cl: f.cl } : {}), ...(f.dragRate !== null ? { dragRate: f.dragRate } : {}) };
+  const launch: Launch = { speed: f.speed, angleDeg: (Math.atan2(f.vy0, f.vx0) * 180) / Math.PI, height: f.y0 };
   return {
-    model,
+    model: f.model,
     converged: chosen.lm.converged,
     stopReason: chosen.lm.stopReason,
-    iterations,
-    evaluations,
+    iterations: s.iterations,
+    evaluations: s.evaluations,
     launch: {
-      ...launch, x: prep.direction * x0, vx: vx0, vy: vy0,
-      speedError: speedErr, angleDegError: propagate(cov, gradAngle), heightError: stdErr(cov, np, 1),
+      ...launch, x: prep.direction * f.x0, vx: f.vx0, vy: f.vy0,
+      speedError: f.speedError, angleDegError: f.angleDegError, heightError: f.heightError,
     },
-    cd, cdError: cdErr, cl, clError: clErr,
-    dragRate: beta, dragRateError: stdErr(cov, np, idx('beta')),
-    flight,
-    errors: { ...derived.errors, standardCarry: std.errors.carry },
-    terminalSpeed, dragToWeight, reynolds, regime, nearDragCrisis,
-    vacuum: { carry: vac.carry, apexHeight: vac.apexHeight, flightTime: vac.flightTime },
-    standardCarry: std.summary.carry,
-    rms, noise, points: n, outliers, trackEnd, extrapolated,
-    scaleCheck, modelSelection: selection, cdPrior: priorInfo,
-    warnings,
+    cd: f.cd, cdError: f.cdError, cl: f.cl, clError: f.clError,
+    dragRate: f.dragRate, dragRateError: f.dragRateError,
+    flight: f.flight,
+    errors: f.errors,
+    terminalSpeed: f.terminalSpeed, dragToWeight: f.dragToWeight, reynolds: f.reynolds, regime: f.regime, nearDragCrisis: f.nearDragCrisis,
+    vacuum: f.vacuum,
+    standardCarry: f.standardCarry,
+    rms: f.rms, noise: f.noise, points: s.n, outliers: f.outliers, trackEnd: f.trackEnd, extrapolated: f.extrapolated,
+    scaleCheck, modelSelection: choice.selection, cdPrior,
+    warnings: s.warnings,
     setup: { launch, aero, ball, air, windSpeed: o.windSpeed, gravity: o.gravity },
     track: { t0: prep.t0, direction: prep.direction },
-    covariance: cov ? { params: names, matrix: Array.from({ length: np }, (_, i) => Array.from(cov.subarray(i * np, (i + 1) * np))) } : null,
+    covariance: f.cov ? { params: f.names, matrix: Array.from({ length: np }, (_, i) => Array.from(f.cov!.subarray(i * np, (i + 1) * np))) } : null,
   };
 }
 

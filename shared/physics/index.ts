@@ -4,14 +4,14 @@
  * See shared/physics/README.md for the models and the methods.
  */
 export { ENGINE_VERSION } from './version';
-export { STANDARD_GRAVITY, ISA } from './constants';
+export { STANDARD_GRAVITY, ISA, CELSIUS_ZERO_K } from './constants';
 export {
   PHYSICS_ERROR_CODES, FLIGHT_WARNING_CODES, PhysicsError, isPhysicsError,
   type PhysicsErrorCode, type FlightWarningCode, type FlightWarning,
 } from './errors';
 export {
   airFromConditions, airFromDensity, standardAir, standardAtmosphere, humidAirDensity, saturationVapourPressure,
-  sutherlandViscosity, reynoldsNumber, dragRegime, geopotentialAltitude, SMOOTH_SPHERE_CRISIS_RE,
+  sutherlandViscosity, reynoldsNumber, dragRegime, geopotentialAltitude, SMOOTH_SPHERE_CRISIS_RE, AIR_TEMPERATURE_RANGE_K,
   type Air, type Conditions, type DragRegime,
 } from './air';
 export {
@@ -32,5 +32,5 @@ export {
   planFlight, whatIf, applyChange, plannerGrid, bestAngle, sensitivities, speedForCarry, PLANNER_RTOL,
   type FlightSetup, type WhatIfChange, type GridAxis, type CarryGrid, type Sensitivities,
 } from './planner';
-export { checkTrack, parseTrackCsv, formatTrackCsv, MIN_POINTS, type Track, type TrackMeta } from './track';
+export { checkTrack, MIN_POINTS, type Track } from './track';
 export { generateTrack, mulberry32, normalGenerator, type SyntheticTrackSpec } from './synthetic';

@@ -19,6 +19,7 @@
  * global error below about 1e-8 m; `scripts/bench/physics.ts` prints the measured discrepancy
  * against a tighter run and against `odex`.
  */
+import { andersonBjorck, DORMAND_PRINCE, STEP_CONTROL } from './dormand-prince';
 import { PhysicsError } from './errors';
 
 /** Right-hand side y' = f(t, y), written into `dydt` (no allocation expected). */
@@ -80,25 +81,11 @@ export interface IntegrateResult {
   evaluations: number;
 }
 
-// Dormand–Prince 5(4) tableau (Dormand & Prince 1980; HNW I, Table II.5.2).
-const C2 = 1 / 5, C3 = 3 / 10, C4 = 4 / 5, C5 = 8 / 9;
-const A21 = 1 / 5;
-const A31 = 3 / 40, A32 = 9 / 40;
-const A41 = 44 / 45, A42 = -56 / 15, A43 = 32 / 9;
-const A51 = 19372 / 6561, A52 = -25360 / 2187, A53 = 64448 / 6561, A54 = -212 / 729;
-const A61 = 9017 / 3168, A62 = -355 / 33, A63 = 46732 / 5247, A64 = 49 / 176, A65 = -5103 / 18656;
-const A71 = 35 / 384, A73 = 500 / 1113, A74 = 125 / 192, A75 = -2187 / 6784, A76 = 11 / 84;
-const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E6 = 22 / 525, E7 = -1 / 40;
-// Continuous extension of order 4 (Shampine 1986, as in DOPRI5's CONTD5).
-const D1 = -12715105075 / 11282082432, D3 = 87487479700 / 32700410799, D4 = -10690763975 / 1880347072,
-  D5 = 701980252875 / 199316789632, D6 = -1453857185 / 822651844, D7 = 69997945 / 29380423;
-
-// Step-size control constants of DOPRI5 (HNW I, §II.4 and the code's defaults).
-const SAFE = 0.9;
-const FAC_MIN = 0.2; // the step shrinks at most ×5 ...
-const FAC_MAX = 10; // ... and grows at most ×10 per step
-const BETA = 0.04; // PI stabilisation (Gustafsson); DOPRI5 default
-const EXPO1 = 0.2 - BETA * 0.75;
+const {
+  C2, C3, C4, C5, A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
+  A71, A73, A74, A75, A76, E1, E3, E4, E5, E6, E7, D1, D3, D4, D5, D6, D7,
+} = DORMAND_PRINCE;
+const { SAFE, FAC_MIN, FAC_MAX, BETA, EXPO1 } = STEP_CONTROL;
 
 /** Defaults of {@link integrate}, declared once. */
 export const INTEGRATOR_DEFAULTS = { rtol: 1e-10, atol: 1e-10, maxSteps: 100000 } as const;
@@ -268,7 +255,7 @@ function run(f: OdeRhs, t0: number, y0: ArrayLike<number>, options: IntegrateOpt
         const g0 = gPrev[e];
         const crosses = (ev.direction <= 0 && g0 > 0 && g1 <= 0) || (ev.direction >= 0 && g0 < 0 && g1 >= 0);
         if (crosses) {
-          const tHit = locateRoot(ev, t, tNew, g0, g1, interpolate, yTmp);
+          const tHit = andersonBjorck((tt) => { interpolate(tt, yTmp); return ev.g(tt, yTmp); }, t, tNew, g0, g1);
           interpolate(tHit, yTmp);
           hits.push({ name: ev.name, t: tHit, y: Float64Array.from(yTmp) });
           if (ev.terminal && tHit <= stopT) {
@@ -355,32 +342,4 @@ function initialStep(f: OdeRhs, t: number, y: Float64Array, f0: Float64Array, hM
   const der12 = Math.max(Math.abs(der2), Math.sqrt(dnf));
   const h1 = der12 <= 1e-15 ? Math.max(1e-6, Math.abs(h) * 1e-3) : Math.pow(0.01 / der12, 1 / 5);
   return Math.min(100 * Math.abs(h), h1, hMax);
-}
-
-/**
- * Root of an event function on the dense output of one step by the Anderson–Björck variant of
- * regula falsi (Anderson & Björck, BIT 12 (1972) 503), to a few ulps of t.
- */
-function locateRoot(ev: OdeEvent, ta: number, tb: number, ga: number, gb: number,
-  interpolate: (tt: number, out: Float64Array) => void, buf: Float64Array): number {
-  if (gb === 0) return tb;
-  // b is always the newest point; a keeps the opposite sign.
-  let a = ta, b = tb, fa = ga, fb = gb;
-  const tolT = 8 * 2.3e-16 * Math.max(Math.abs(ta), Math.abs(tb), 1e-300);
-  for (let it = 0; it < 200 && Math.abs(b - a) > tolT; it++) {
-    let c = (a * fb - b * fa) / (fb - fa);
-    const lo = Math.min(a, b), hi = Math.max(a, b);
-    if (!(c > lo && c < hi)) c = 0.5 * (a + b);
-    interpolate(c, buf);
-    const fc = ev.g(c, buf);
-    if (fc === 0) return c;
-    if ((fc > 0) !== (fb > 0)) {
-      a = b; fa = fb;
-    } else {
-      const m = 1 - fc / fb;
-      fa *= m > 0 ? m : 0.5;
-    }
-    b = c; fb = fc;
-  }
-  return Math.abs(fa) < Math.abs(fb) ? a : b;
 }

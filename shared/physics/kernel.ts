@@ -8,20 +8,16 @@
  *
  * One formula covers every model: a = −(κC_d V + β) u + κC_L V (−u_y, uₓ) − (0, g), u = (vₓ − w, v_y).
  */
+import { andersonBjorck, DORMAND_PRINCE, STEP_CONTROL } from './dormand-prince';
 import { PhysicsError } from './errors';
 import type { MotionCoefficients } from './flight';
 
 // The right-hand side does not depend on time, so the stage times c_i are not needed.
-const A21 = 1 / 5;
-const A31 = 3 / 40, A32 = 9 / 40;
-const A41 = 44 / 45, A42 = -56 / 15, A43 = 32 / 9;
-const A51 = 19372 / 6561, A52 = -25360 / 2187, A53 = 64448 / 6561, A54 = -212 / 729;
-const A61 = 9017 / 3168, A62 = -355 / 33, A63 = 46732 / 5247, A64 = 49 / 176, A65 = -5103 / 18656;
-const A71 = 35 / 384, A73 = 500 / 1113, A74 = 125 / 192, A75 = -2187 / 6784, A76 = 11 / 84;
-const E1 = 71 / 57600, E3 = -71 / 16695, E4 = 71 / 1920, E5 = -17253 / 339200, E6 = 22 / 525, E7 = -1 / 40;
-const D1 = -12715105075 / 11282082432, D3 = 87487479700 / 32700410799, D4 = -10690763975 / 1880347072,
-  D5 = 701980252875 / 199316789632, D6 = -1453857185 / 822651844, D7 = 69997945 / 29380423;
-const SAFE = 0.9, FAC_MIN = 0.2, FAC_MAX = 10, BETA = 0.04, EXPO1 = 0.2 - BETA * 0.75;
+const {
+  A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
+  A71, A73, A74, A75, A76, E1, E3, E4, E5, E6, E7, D1, D3, D4, D5, D6, D7,
+} = DORMAND_PRINCE;
+const { SAFE, FAC_MIN, FAC_MAX, BETA, EXPO1 } = STEP_CONTROL;
 
 /** Apex and landing of a flight, as found by {@link flyKernel}. */
 export interface KernelFlight {
@@ -39,23 +35,6 @@ class Dense {
     const s = (t - this.t0) / this.h, s1 = 1 - s, o = comp * 5, c = this.c;
     return c[o] + s * (c[o + 1] + s1 * (c[o + 2] + s * (c[o + 3] + s1 * c[o + 4])));
   }
-}
-
-/** Zero of one component of the dense output on [a, b] by Anderson–Björck, as in the generic integrator. */
-function root(d: Dense, comp: number, ta: number, tb: number, ga: number, gb: number): number {
-  if (gb === 0) return tb;
-  let a = ta, b = tb, fa = ga, fb = gb;
-  const tolT = 8 * 2.3e-16 * Math.max(Math.abs(ta), Math.abs(tb), 1e-300);
-  for (let it = 0; it < 200 && Math.abs(b - a) > tolT; it++) {
-    let c = (a * fb - b * fa) / (fb - fa);
-    const lo = Math.min(a, b), hi = Math.max(a, b);
-    if (!(c > lo && c < hi)) c = 0.5 * (a + b);
-    const fc = d.at(c, comp);
-    if (fc === 0) return c;
-    if ((fc > 0) !== (fb > 0)) { a = b; fa = fb; } else { const m = 1 - fc / fb; fa *= m > 0 ? m : 0.5; }
-    b = c; fb = fc;
-  }
-  return Math.abs(fa) < Math.abs(fb) ? a : b;
 }
 
 const dense = new Dense();
@@ -157,11 +136,11 @@ export function flyKernel(c: MotionCoefficients, x0: number, y0: number, vx0: nu
         dc[o + 4] = h * (D1 * k1 + D3 * k3 + D4 * k4 + D5 * k5 + D6 * k6 + D7 * k7);
       }
       if (apexHere) {
-        const ta = root(dense, 3, t, tNew, v, vn);
+        const ta = andersonBjorck((tt) => dense.at(tt, 3), t, tNew, v, vn);
         apex = { t: ta, x: dense.at(ta, 0), y: dense.at(ta, 1) };
       }
       if (landHere) {
-        const tl = root(dense, 1, t, tNew, y, yn);
+        const tl = andersonBjorck((tt) => dense.at(tt, 1), t, tNew, y, yn);
         return { apex, landing: { t: tl, x: dense.at(tl, 0), vx: dense.at(tl, 2), vy: dense.at(tl, 3) }, steps };
       }
     }

@@ -1,11 +1,6 @@
 /**
- * Traced flights: checks, and the CSV form read by the `fit` command and by track imports.
- *
- * CSV: a header naming at least `t`, `x`, `y` (seconds; metres; first sample at the release;
- * x along the flight, y up from the ground), one sample per line, comma-separated; lines starting
- * with `#` are comments. Leading comment lines `# key: value` describe the flight: `mass_kg`,
- * `diameter_m`, `ball` (catalogue id), `air_density_kg_m3`, `temperature_c`, `pressure_pa`,
- * `humidity_pct`, `altitude_m`, `wind_m_s`.
+ * Traced flights: the checks a track passes before a fit. Track files are read by
+ * `shared/tracks/csv.ts`.
  */
 import { PhysicsError } from './errors';
 
@@ -15,31 +10,6 @@ export interface Track {
   x: ArrayLike<number>;
   y: ArrayLike<number>;
 }
-
-/** Metadata a track file may carry in its leading comments (SI, as named). */
-export interface TrackMeta {
-  massKg?: number;
-  diameterM?: number;
-  ball?: string;
-  airDensityKgM3?: number;
-  temperatureC?: number;
-  pressurePa?: number;
-  humidityPct?: number;
-  altitudeM?: number;
-  windMS?: number;
-}
-
-const META_KEYS: Record<string, keyof TrackMeta> = {
-  mass_kg: 'massKg',
-  diameter_m: 'diameterM',
-  ball: 'ball',
-  air_density_kg_m3: 'airDensityKgM3',
-  temperature_c: 'temperatureC',
-  pressure_pa: 'pressurePa',
-  humidity_pct: 'humidityPct',
-  altitude_m: 'altitudeM',
-  wind_m_s: 'windMS',
-};
 
 /** Fewest samples a fit accepts: the drag-lift model has six parameters, so five points leave almost nothing. */
 export const MIN_POINTS = 5;
@@ -74,89 +44,7 @@ export function checkTrack(track: Track): { t: Float64Array; x: Float64Array; y:
   return { t, x, y };
 }
 
-/**
- * Read a track CSV.
- * @param text the file's content.
- * @returns the samples, the metadata of its leading comments, and any extra columns by name.
- * @throws PhysicsError `CSV_NO_HEADER` when no header holds t, x and y; `CSV_BAD_ROW` for a row
- *   with missing or non-numeric fields (`NaN` is read as a number and caught by {@link checkTrack}).
- */
-export function parseTrackCsv(text: string): { track: { t: number[]; x: number[]; y: number[] }; meta: TrackMeta; columns: Record<string, number[]> } {
-  const lines = text.split(/\r?\n/);
-  const meta: TrackMeta = {};
-  let header: string[] | null = null;
-  const cols: number[][] = [];
-  for (let ln = 0; ln < lines.length; ln++) {
-    const line = lines[ln].trim();
-    if (line === '') continue;
-    if (line.startsWith('#')) {
-      if (header === null) {
-        const m = /^#\s*([A-Za-z0-9_]+)\s*:\s*(.*?)\s*$/.exec(line);
-        const key = m ? META_KEYS[m[1].toLowerCase()] : undefined;
-        if (m && key) {
-          if (key === 'ball') meta.ball = m[2];
-          else {
-            const v = Number(m[2]);
-            if (m[2] === '' || !Number.isFinite(v)) {
-              throw new PhysicsError('CSV_BAD_ROW', `Line ${ln + 1}: "${m[1]}" must be a number, got "${m[2]}".`, { line: ln + 1 });
-            }
-            (meta as Record<string, number>)[key] = v;
-          }
-        }
-      }
-      continue;
-    }
-    const fields = line.split(',').map((f) => f.trim());
-    if (header === null) {
-      header = fields.map((f) => f.toLowerCase());
-      for (const need of ['t', 'x', 'y']) {
-        if (!header.includes(need)) {
-          throw new PhysicsError('CSV_NO_HEADER', `Line ${ln + 1}: the header must name the columns t, x and y (seconds, metres); found "${line}".`, { line: ln + 1 });
-        }
-      }
-      for (let c = 0; c < header.length; c++) cols.push([]);
-      continue;
-    }
-    if (fields.length !== header.length) {
-      throw new PhysicsError('CSV_BAD_ROW', `Line ${ln + 1}: expected ${header.length} fields (${header.join(',')}), found ${fields.length}.`, { line: ln + 1 });
-    }
-    for (let c = 0; c < fields.length; c++) {
-      const f = fields[c];
-      const v = /^nan$/i.test(f) ? NaN : Number(f);
-      if (f === '' || (Number.isNaN(v) && !/^nan$/i.test(f))) {
-        throw new PhysicsError('CSV_BAD_ROW', `Line ${ln + 1}: "${f}" in column ${header[c]} is not a number.`, { line: ln + 1 });
-      }
-      cols[c].push(v);
-    }
-  }
-  if (header === null) {
-    throw new PhysicsError('CSV_NO_HEADER', 'The file has no header line naming the columns t, x and y.');
-  }
-  const columns: Record<string, number[]> = {};
-  header.forEach((h, c) => { columns[h] = cols[c]; });
-  return { track: { t: columns.t, x: columns.x, y: columns.y }, meta, columns };
-}
-
-/** Write a track (and optional metadata) as CSV with the header `t,x,y`; values to 0.1 µs and 0.1 µm. */
-export function formatTrackCsv(track: Track, meta: TrackMeta = {}, comments: string[] = []): string {
-  const out: string[] = comments.map((c) => `# ${c}`);
-  for (const [file, key] of Object.entries(META_KEYS)) {
-    const v = meta[key];
-    if (v !== undefined) out.push(`# ${file}: ${v}`);
-  }
-  out.push('t,x,y');
-  for (let i = 0; i < track.t.length; i++) {
-    out.push(`${fmt(track.t[i], 7)},${fmt(track.x[i], 7)},${fmt(track.y[i], 7)}`);
-  }
-  return out.join('\n') + '\n';
-}
-
 /** A number for a message: six significant digits, no float noise. */
 function show(v: number): string {
   return String(Number(v.toPrecision(6)));
-}
-
-function fmt(v: number, decimals: number): string {
-  if (!Number.isFinite(v)) return String(v);
-  return String(Number(v.toFixed(decimals)));
 }

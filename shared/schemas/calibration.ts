@@ -1,14 +1,7 @@
 /**
- * Calibration of a clip: pixels → metres in the plane of flight.
- *
- * Method (common practice in planar video measurement): the scale is the known distance over the
- * pixel distance between two points in the plane of flight; a level line gives the horizontal; the
- * origin is a point on the ground under the release. With s = metres per pixel, h = the unit vector
- * along the level line pointing the way the ball flies, u = the unit perpendicular pointing up the
- * image, a pixel p maps to x = s·((p − o)·h), y = s·((p − o)·u). Assumes square pixels and a camera
- * square to the plane of flight (the four-point plane mapping comes later).
- *
- * The math is here (pure TypeScript) so the Trace screen previews exactly what the server stores.
+ * Calibration of a clip as a request body and as the API answers it: two scale points and the
+ * known distance between them, an optional level line, the origin, the direction of play and an
+ * optional ball-size cross-check. The pixel → metre mapping is in `shared/calibration/geometry.ts`.
  */
 import { z } from 'zod';
 
@@ -20,9 +13,6 @@ export type PixelPoint = z.infer<typeof pixelPointSchema>;
 
 export const CALIBRATION_DIRECTIONS = ['right', 'left'] as const;
 export type CalibrationDirection = (typeof CALIBRATION_DIRECTIONS)[number];
-
-/** Apparent over catalogue ball diameter outside 1 ± this is reported as not ok (a blurred ball looks bigger). */
-export const BALL_CHECK_TOLERANCE = 0.15;
 
 const samePoint = (a: PixelPoint, b: PixelPoint) => Math.hypot(a.xPx - b.xPx, a.yPx - b.yPx) < 1e-9;
 
@@ -91,81 +81,4 @@ export interface Calibration extends CalibrationInput, CalibrationFrame {
   clipId: number;
   ballCheck: BallCheck | null;
   updatedAt: string;
-}
-
-/**
- * Builds the pixel → metre frame of a calibration.
- * @param input validated calibration (scale points distinct, distance > 0 m)
- * @returns metres per pixel (m/px), the level tilt (degrees) and the unit vectors of the mapping
- * @throws Error when the scale or level points coincide (the schema refuses those first)
- */
-export function computeCalibration(input: CalibrationInput): CalibrationFrame {
-  const { a, b, distanceM } = input.scale;
-  const pixels = Math.hypot(b.xPx - a.xPx, b.yPx - a.yPx);
-  if (!(pixels > 0) || !(distanceM > 0)) throw new Error('Calibration needs two distinct scale points and a distance above 0 m.');
-  let hx = 1;
-  let hy = 0;
-  if (input.level) {
-    const dx = input.level.b.xPx - input.level.a.xPx;
-    const dy = input.level.b.yPx - input.level.a.yPx;
-    const len = Math.hypot(dx, dy);
-    if (!(len > 0)) throw new Error('The level line needs two distinct points.');
-    hx = dx / len;
-    hy = dy / len;
-  }
-  // Orient h with the flight: rightwards means a positive image x component.
-  const wantRight = input.direction === 'right';
-  if ((hx < 0 && wantRight) || (hx > 0 && !wantRight) || (hx === 0 && hy > 0)) {
-    hx = -hx;
-    hy = -hy;
-  }
-  // Of the two perpendiculars pick the one pointing up the image (negative y, since image y runs down).
-  let ux = hy;
-  let uy = -hx;
-  if (uy > 0) {
-    ux = -ux;
-    uy = -uy;
-  }
-  // Tilt of the level line as drawn on screen (y down), folded into (−90°, 90°].
-  const rightward = hx >= 0 ? { x: hx, y: hy } : { x: -hx, y: -hy };
-  const levelAngleDeg = (Math.atan2(-rightward.y, rightward.x) * 180) / Math.PI;
-  return {
-    metresPerPixel: distanceM / pixels,
-    levelAngleDeg,
-    h: { x: hx, y: hy },
-    u: { x: ux, y: uy },
-    origin: { xPx: input.origin.xPx, yPx: input.origin.yPx },
-  };
-}
-
-/** Maps an image pixel (x right, y down) to metres: x along the flight, y up from the ground at the origin. */
-export function pixelToMetres(frame: CalibrationFrame, p: PixelPoint): { xM: number; yM: number } {
-  const dx = p.xPx - frame.origin.xPx;
-  const dy = p.yPx - frame.origin.yPx;
-  return {
-    xM: frame.metresPerPixel * (dx * frame.h.x + dy * frame.h.y),
-    yM: frame.metresPerPixel * (dx * frame.u.x + dy * frame.u.y),
-  };
-}
-
-/** The inverse of `pixelToMetres` (h and u are orthonormal, so the inverse is the transpose). */
-export function metresToPixel(frame: CalibrationFrame, m: { xM: number; yM: number }): PixelPoint {
-  const x = m.xM / frame.metresPerPixel;
-  const y = m.yM / frame.metresPerPixel;
-  return {
-    xPx: frame.origin.xPx + x * frame.h.x + y * frame.u.x,
-    yPx: frame.origin.yPx + x * frame.h.y + y * frame.u.y,
-  };
-}
-
-/**
- * The ball-size cross-check: apparent diameter in metres against the catalogue diameter.
- * @param metresPerPixel scale, m/px
- * @param diameterPx apparent ball diameter, px
- * @param catalogueDiameterM nominal diameter from the ball catalogue, m
- */
-export function ballCheck(ballId: string, metresPerPixel: number, diameterPx: number, catalogueDiameterM: number): BallCheck {
-  const apparentDiameterM = diameterPx * metresPerPixel;
-  const ratio = apparentDiameterM / catalogueDiameterM;
-  return { ballId, apparentDiameterM, catalogueDiameterM, ratio, ok: Math.abs(ratio - 1) <= BALL_CHECK_TOLERANCE };
 }

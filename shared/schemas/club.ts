@@ -148,7 +148,7 @@ export interface ClubOverview {
   role: (typeof ROLES)[number];
   /**
    * Counts shown on the Overview. `members`, `admins`, `coaches`, `athletes` count memberships;
-   * `athleteProfiles` counts profiles (an athlete sees only their own). Later features add keys.
+   * `athleteProfiles` counts profiles (an athlete sees only their own); each further resource adds its own key.
    */
   counts: { members: number; admins: number; coaches: number; athletes: number; athleteProfiles: number } & Record<string, number>;
 }

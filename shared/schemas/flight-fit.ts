@@ -1,10 +1,12 @@
 /**
  * Options of a flight fit as a request body (fit jobs, the planner's conditions), validated the same
  * way by the client's forms and the server, and turned into the engine's `FitOptions`.
- * Units as in the engine: SI, temperature in °C, humidity in %.
+ * Units as stored and as in the engine: SI, temperature in kelvin, humidity in %; the air's
+ * conditions are the session's (`airConditionsSchema`).
  */
 import { z } from 'zod';
 import { airFromConditions, airFromDensity, BALLS, type FitOptions } from '../physics/index';
+import { airConditionsSchema } from './session';
 
 export const FIT_MODEL_CHOICES = ['auto', 'vacuum', 'linear', 'drag', 'drag-lift'] as const;
 export const FIT_LOSSES = ['soft-l1', 'linear', 'cauchy', 'huber'] as const;
@@ -14,15 +16,6 @@ const finite = (what: string, lo: number, hi: number, unit: string) =>
     .refine(Number.isFinite, { error: `${what} must be a finite number.` })
     .refine((v) => v >= lo && v <= hi, { error: `${what} must lie within ${lo}…${hi} ${unit}.` });
 
-/** Weather at the field (all optional; see `airFromConditions`). */
-export const conditionsSchema = z.object({
-  temperatureC: finite('Temperature', -40, 60, '°C').optional(),
-  pressurePa: finite('Pressure', 30000, 110000, 'Pa').optional(),
-  relativeHumidityPct: finite('Relative humidity', 0, 100, '%').optional(),
-  altitudeM: finite('Altitude', -500, 10000, 'm').optional(),
-});
-export type ConditionsInput = z.infer<typeof conditionsSchema>;
-
 export const flightFitOptionsSchema = z.object({
   model: z.enum(FIT_MODEL_CHOICES, { error: `Model must be one of ${FIT_MODEL_CHOICES.join(', ')}.` }).default('auto'),
   /** A catalogue ball id, or mass and diameter below. */
@@ -30,8 +23,10 @@ export const flightFitOptionsSchema = z.object({
   massKg: finite('Ball mass', 1e-4, 20, 'kg').optional(),
   diameterM: finite('Ball diameter', 1e-3, 1, 'm').optional(),
   airDensityKgM3: finite('Air density', 0.3, 1.6, 'kg/m³').optional(),
-  conditions: conditionsSchema.optional(),
-  windSpeedMS: finite('Wind', -60, 60, 'm/s').default(0),
+  /** The air on the day (see `airFromConditions`). */
+  conditions: airConditionsSchema.optional(),
+  /** Wind along the flight, + = tailwind. */
+  windAlongFlightMps: finite('Wind', -60, 60, 'm/s').default(0),
   loss: z.enum(FIT_LOSSES).default('soft-l1'),
   allowDescending: z.boolean().default(false),
 })
@@ -44,5 +39,5 @@ export type FlightFitOptionsInput = z.infer<typeof flightFitOptionsSchema>;
 export function toFitOptions(input: FlightFitOptionsInput): FitOptions {
   const ball = input.ballId ?? (input.massKg !== undefined && input.diameterM !== undefined ? { massKg: input.massKg, diameterM: input.diameterM } : undefined);
   const air = input.airDensityKgM3 !== undefined ? airFromDensity(input.airDensityKgM3) : input.conditions ? airFromConditions(input.conditions) : undefined;
-  return { model: input.model, ball, air, windSpeed: input.windSpeedMS, loss: input.loss, allowDescending: input.allowDescending };
+  return { model: input.model, ball, air, windSpeed: input.windAlongFlightMps, loss: input.loss, allowDescending: input.allowDescending };
 }

@@ -12,8 +12,11 @@ const nullableNumber = (min: number, max: number, what: string) =>
     .nullable()
     .optional();
 
-/** Air and wind on the day. Each field may be unknown (null); the fit then uses standard air. */
-export const conditionsSchema = z.object({
+/**
+ * The air on the day, as the engine's `airFromConditions` reads it. Each field may be unknown
+ * (null); the fit then assumes standard values for it.
+ */
+export const airConditionsSchema = z.object({
   /** Air temperature in kelvin (K = °C + 273.15); 200–340 K covers −73 °C to 67 °C. */
   airTemperatureK: nullableNumber(200, 340, 'Air temperature (K)'),
   /** Station air pressure in pascals. Used in preference to the altitude when both are given. */
@@ -22,6 +25,11 @@ export const conditionsSchema = z.object({
   altitudeM: nullableNumber(-500, 5000, 'Altitude (m)'),
   /** Relative humidity in per cent. */
   relativeHumidityPct: nullableNumber(0, 100, 'Relative humidity (%)'),
+});
+export type AirConditionsInput = z.infer<typeof airConditionsSchema>;
+
+/** Air and wind on the day. Each field may be unknown (null); the fit then uses standard air and still air. */
+export const conditionsSchema = airConditionsSchema.extend({
   /** Wind speed in m/s. */
   windSpeedMps: nullableNumber(0, 40, 'Wind speed (m/s)'),
   /**

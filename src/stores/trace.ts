@@ -1,6 +1,7 @@
 import { defineStore } from 'pinia';
 import { computed, ref, shallowRef, watch } from 'vue';
-import { computeCalibration, type CalibrationFrame, type CalibrationInput } from '@shared/schemas/calibration';
+import { computeCalibration } from '@shared/calibration/geometry';
+import type { CalibrationFrame, CalibrationInput } from '@shared/schemas/calibration';
 import { fetchClip, frameUrl, saveCalibration, deleteCalibration, type Clip } from '@/api/clips';
 import {
   createFlight,

@@ -6,10 +6,10 @@
  *
  * Every name, venue and date here is invented (PRODUCT.md, "Demo scenario").
  */
-import { ballProps, dragFactor, simulateFlight, type Air, type FlightSummary, type Launch } from '../../../shared/physics';
+import { ballProps, CELSIUS_ZERO_K, dragFactor, simulateFlight, type Air, type FlightSummary, type Launch } from '../../../shared/physics';
 import type { Conditions } from '../../../shared/schemas/session';
 import type { PointSource } from '../../../shared/schemas/track';
-import { sessionAir, windAlongFlight, ZERO_CELSIUS_K } from '../../services/fit-input';
+import { sessionAir, windAlongFlight } from '../../services/fit-input';
 
 /** How the ball of a demo clip was traced. */
 export interface DemoTracing {
@@ -77,7 +77,7 @@ export const DEMO_SESSIONS: readonly DemoSessionPlan[] = [
     venue: 'Saltmere Strand Field (sea level)',
     notes: 'Cool, damp evening by the sea, light breeze straight across the pitch. Kicking and throwing block after the warm-up.',
     conditions: {
-      airTemperatureK: 9 + ZERO_CELSIUS_K,
+      airTemperatureK: 9 + CELSIUS_ZERO_K,
       airPressurePa: 101_500,
       altitudeM: 0,
       relativeHumidityPct: 80,
@@ -126,7 +126,7 @@ export const DEMO_SESSIONS: readonly DemoSessionPlan[] = [
     venue: 'Korrow Heights Ground (1,600 m)',
     notes: 'Warm, dry midday at altitude; still air. Thin air: expect longer carries than at home.',
     conditions: {
-      airTemperatureK: 29 + ZERO_CELSIUS_K,
+      airTemperatureK: 29 + CELSIUS_ZERO_K,
       airPressurePa: null,
       altitudeM: 1600,
       relativeHumidityPct: 30,

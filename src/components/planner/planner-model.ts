@@ -152,7 +152,7 @@ export function conditionsChanged(start: PlannerInputs, now: PlannerInputs): boo
 export function whatIfAir(base: FlightSetup, start: PlannerInputs, now: PlannerInputs): Air {
   if (!conditionsChanged(start, now)) return base.air;
   return airFromConditions({
-    temperatureC: now.temperatureK - ZERO_CELSIUS_K,
+    airTemperatureK: now.temperatureK,
     altitudeM: now.altitudeM,
     relativeHumidityPct: now.humidityPct,
   });
@@ -173,7 +173,7 @@ export interface BlankStart {
   ballId: string;
   launch: Launch;
   windSpeed: number;
-  temperatureC: number;
+  temperatureK: number;
   altitudeM: number;
   humidityPct: number;
 }
@@ -182,7 +182,7 @@ export const DEFAULT_BLANK: BlankStart = {
   ballId: 'football-5',
   launch: { speed: 25, angleDeg: 35, height: 0 },
   windSpeed: 0,
-  temperatureC: 15,
+  temperatureK: 288.15,
   altitudeM: 0,
   humidityPct: 50,
 };
@@ -194,7 +194,7 @@ export function blankSetup(start: BlankStart): FlightSetup {
   return {
     launch: { ...start.launch },
     ball: ballProps(start.ballId),
-    air: airFromConditions({ temperatureC: start.temperatureC, altitudeM: start.altitudeM, relativeHumidityPct: start.humidityPct }),
+    air: airFromConditions({ airTemperatureK: start.temperatureK, altitudeM: start.altitudeM, relativeHumidityPct: start.humidityPct }),
     aero: { model: 'drag', cd: spec.cd.nominal },
     windSpeed: start.windSpeed,
     gravity: STANDARD_GRAVITY,

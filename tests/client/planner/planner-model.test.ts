@@ -62,13 +62,13 @@ describe('setupFromInputs', () => {
   it('recomputes the air from the sliders when the altitude moves', () => {
     const now = { ...start, altitudeM: 1600 };
     const air = setupFromInputs(setup, start, now).air;
-    expect(air.densityKgM3).toBeCloseTo(airFromConditions({ temperatureC: 15, altitudeM: 1600, relativeHumidityPct: 50 }).densityKgM3, 12);
+    expect(air.densityKgM3).toBeCloseTo(airFromConditions({ airTemperatureK: 288.15, altitudeM: 1600, relativeHumidityPct: 50 }).densityKgM3, 12);
     expect(air.densityKgM3).toBeLessThan(setup.air.densityKgM3);
   });
 
   it('finds the altitude of a pressure as the inverse of the standard atmosphere when starting from a fit', () => {
     for (const z of [0, 350, 1600, 4200]) expect(altitudeForPressure(standardAtmosphere(z).pressurePa)).toBeCloseTo(z, 6);
-    const at1600 = { ...setup, air: airFromConditions({ altitudeM: 1600, temperatureC: 24 }) };
+    const at1600 = { ...setup, air: airFromConditions({ altitudeM: 1600, airTemperatureK: 297.15 }) };
     expect(inputsFromSetup(at1600).altitudeM).toBeCloseTo(1600, 6);
   });
 });

@@ -66,8 +66,8 @@ describe('airFromConditions', () => {
 
   it('gives thinner air on a warm upland day than on a cool sea-level evening', () => {
     // Common practice: density falls with altitude and temperature.
-    const upland = airFromConditions({ temperatureC: 27, altitudeM: 1600, relativeHumidityPct: 30 });
-    const coast = airFromConditions({ temperatureC: 10, pressurePa: 101500, relativeHumidityPct: 80 });
+    const upland = airFromConditions({ airTemperatureK: 300.15, altitudeM: 1600, relativeHumidityPct: 30 });
+    const coast = airFromConditions({ airTemperatureK: 283.15, airPressurePa: 101500, relativeHumidityPct: 80 });
     expect(upland.densityKgM3).toBeLessThan(coast.densityKgM3 * 0.82);
   });
 
@@ -76,7 +76,7 @@ describe('airFromConditions', () => {
   });
 
   it('refuses a pressure given in hectopascals', () => {
-    expect(() => airFromConditions({ pressurePa: 1013 })).toThrowError(/Pressure 1013 Pa is outside/);
+    expect(() => airFromConditions({ airPressurePa: 1013 })).toThrowError(/Pressure 1013 Pa is outside/);
   });
 });
 

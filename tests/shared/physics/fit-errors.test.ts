@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { airFromConditions, fitFlight, generateTrack, isPhysicsError, type FitOptions, type SyntheticTrackSpec, type Track } from '../../../shared/physics/index';
 
 // One test per message a coach or analyst can see when a track cannot be fitted as it is.
-const air = airFromConditions({ temperatureC: 15 });
+const air = airFromConditions({ airTemperatureK: 288.15 });
 const punt: SyntheticTrackSpec = {
   launch: { speed: 28, angleDeg: 35, height: 0.2 }, ball: 'football-5', air, aero: { model: 'drag', cd: 0.25 }, fps: 60, noise: 0.02, seed: 21,
 };

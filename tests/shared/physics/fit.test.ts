@@ -6,7 +6,7 @@ import { fitDragWithMlLm } from '../../../scripts/fit/reference';
 
 // Recovery tests: flights generated with known parameters by shared/physics/synthetic.ts (seeded),
 // fitted back. Tolerances: within 3 standard errors of the truth (and a stated absolute bound).
-const air = airFromConditions({ temperatureC: 15, pressurePa: 101325, relativeHumidityPct: 50 });
+const air = airFromConditions({ airTemperatureK: 288.15, airPressurePa: 101325, relativeHumidityPct: 50 });
 const punt: SyntheticTrackSpec = {
   launch: { speed: 28, angleDeg: 35, height: 0.2 }, ball: 'football-5', air, aero: { model: 'drag', cd: 0.25 }, fps: 60, noise: 0.02, seed: 1,
 };

@@ -108,8 +108,8 @@ describe('plannerGrid', () => {
 describe('whatIf', () => {
   it('carries farther on a warm upland day than on a cool sea-level evening', () => {
     // Common practice: thinner air, less drag.
-    const evening = { ...kick, air: airFromConditions({ temperatureC: 10, pressurePa: 101500, relativeHumidityPct: 80 }) };
-    const r = whatIf(evening, { conditions: { temperatureC: 27, altitudeM: 1600, relativeHumidityPct: 30 } });
+    const evening = { ...kick, air: airFromConditions({ airTemperatureK: 283.15, airPressurePa: 101500, relativeHumidityPct: 80 }) };
+    const r = whatIf(evening, { conditions: { airTemperatureK: 300.15, altitudeM: 1600, relativeHumidityPct: 30 } });
     expect(r.delta.carry).toBeGreaterThan(2);
     expect(r.delta.carry).toBeCloseTo(r.changed.carry - r.base.carry, 12);
     expect(r.changed.flightTime).toBeGreaterThan(r.base.flightTime);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { csvCell, parseTrackCsv, TrackCsvError } from '../../../shared/schemas/track';
+import { csvCell, parseTrackCsv, TrackCsvError } from '../../../shared/tracks/csv';
 
 function errorOf(text: string): TrackCsvError {
   try {

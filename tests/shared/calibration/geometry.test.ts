@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { ballCheck, calibrationInputSchema, computeCalibration, metresToPixel, pixelToMetres, type CalibrationInput } from '../../../shared/schemas/calibration';
+import { ballCheck, computeCalibration, metresToPixel, pixelToMetres } from '../../../shared/calibration/geometry';
+import { calibrationInputSchema, type CalibrationInput } from '../../../shared/schemas/calibration';
 
 const base: CalibrationInput = {
   scale: { a: { xPx: 100, yPx: 400 }, b: { xPx: 300, yPx: 400 }, distanceM: 10 },

@@ -1,3 +1,0 @@
-/** Every request-body schema shared by client and server. */
-export * from './auth';
-export * from './club';
