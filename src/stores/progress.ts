@@ -1,6 +1,8 @@
 import { defineStore } from 'pinia';
 import { computed, ref, shallowRef, watch } from 'vue';
-import { fetchProgress, fetchProgressAthletes, type AthleteProfileSummary, type Flight, type FlightAction, type Session } from '@/api/progress';
+import { fetchAthletes, type AthleteProfileSummary } from '@/api/athletes';
+import { listFlightActions, listFlights, type Flight, type FlightAction } from '@/api/flights';
+import { listSessions, type Session } from '@/api/sessions';
 import { measuredFlights, progressSummary, type MeasuredFlight } from '@/components/progress/progress-stats';
 import { loadErrorText } from '@/composables/use-loader';
 import { useClubStore } from './club';
@@ -39,7 +41,7 @@ export const useProgressStore = defineStore('progress', () => {
     const clubId = club.clubId;
     if (clubId === null || !isStaff.value) return;
     try {
-      athletes.value = await fetchProgressAthletes(clubId);
+      athletes.value = await fetchAthletes(clubId);
     } catch (cause) {
       error.value = loadErrorText(cause);
     }
@@ -59,11 +61,16 @@ export const useProgressStore = defineStore('progress', () => {
     error.value = null;
     try {
       // Note: an athlete's list is scoped by the server; passing her id too would only repeat it.
-      const data = await fetchProgress(clubId, isStaff.value ? athleteId.value : null);
+      const [list, sessionList, actionList] = await Promise.all([
+        listFlights(clubId, { athleteId: isStaff.value ? athleteId.value : null }),
+        listSessions(clubId),
+        // Labels only: without them the keys are shown in words.
+        listFlightActions(clubId).catch(() => [] as FlightAction[]),
+      ]);
       if (mine !== generation) return;
-      flights.value = data.flights;
-      sessions.value = data.sessions;
-      actions.value = data.actions;
+      flights.value = list.data;
+      sessions.value = sessionList.data;
+      actions.value = actionList;
       loaded.value = true;
     } catch (cause) {
       if (mine === generation) error.value = loadErrorText(cause);

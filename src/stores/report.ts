@@ -3,7 +3,7 @@ import { computed, ref, shallowRef, watch } from 'vue';
 import type { Session } from '@shared/schemas/session';
 import { FLIGHT_STATUS_LABELS, type FlightStatus } from '@shared/schemas/flight';
 import { listSessions } from '@/api/sessions';
-import { fetchActions, fetchFlightList, type Flight, type FlightAction } from '@/api/reports';
+import { listFlightActions, listFlights, type Flight, type FlightAction } from '@/api/flights';
 import { ballName } from '@/components/trace/balls';
 import type { FlightCsvRow } from '@/components/report/flights-csv';
 import { loadErrorText } from '@/composables/use-loader';
@@ -105,9 +105,9 @@ export const useReportStore = defineStore('report', () => {
     error.value = null;
     try {
       const [list, sessionList, actionList] = await Promise.all([
-        fetchFlightList(clubId),
+        listFlights(clubId),
         listSessions(clubId).then((a) => a.data).catch(() => [] as Session[]),
-        fetchActions(clubId).catch(() => [] as FlightAction[]),
+        listFlightActions(clubId).catch(() => [] as FlightAction[]),
       ]);
       if (mine !== generation) return;
       flights.value = list.data;

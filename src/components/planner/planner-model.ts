@@ -7,7 +7,16 @@ import {
   airFromConditions, ballProps, BALLS, standardAtmosphere, STANDARD_GRAVITY,
   type Air, type CarryGrid, type FlightSetup, type Launch, type Sensitivities,
 } from '@shared/physics';
+import type { Flight } from '@shared/schemas/flight';
 import { displayUnit, fromSi, toSi, type Quantity, type UnitSystem } from '@/utils/units';
+
+/** Statuses whose latest fit is current (a `traced` flight's old fit is stale: its points changed since). */
+const CURRENT_FIT_STATUSES: readonly Flight['status'][] = ['fitted', 'reviewed', 'needs_attention'];
+
+/** Whether the Planner can start from a flight: it has a fit that matches its points. */
+export function hasCurrentFit(flight: Pick<Flight, 'latestFit' | 'status'>): boolean {
+  return flight.latestFit !== null && CURRENT_FIT_STATUSES.includes(flight.status);
+}
 
 /** 0 °C in kelvin. */
 const ZERO_CELSIUS_K = 273.15;
