@@ -3,7 +3,7 @@ import { ref, shallowRef, watch } from 'vue';
 import { fetchAthlete, type AthleteProfileSummary } from '@/api/athletes';
 import { fetchFlight, listFits, listFlightActions, setFlightReviewed, type Fit, type FlightDetail } from '@/api/flights';
 import { fetchSession, type Session } from '@/api/sessions';
-import { useRecordLoad } from '@/composables/use-record-load';
+import { useLatestLoad } from '@/composables/use-latest-load';
 import { useClubStore } from './club';
 import { useReportStore } from './report';
 
@@ -19,7 +19,7 @@ export const useFlightReportStore = defineStore('flight-report', () => {
   const session = shallowRef<Session | null>(null);
   const athlete = shallowRef<AthleteProfileSummary | null>(null);
   const actionLabel = ref<string | null>(null);
-  const { loading, error, notFound, run, reset } = useRecordLoad();
+  const { loading, error, notFound, run, reset } = useLatestLoad({ notFound: true });
   const reviewing = ref(false);
 
   function clear(): void {

@@ -2,7 +2,7 @@ import { defineStore } from 'pinia';
 import { shallowRef, watch } from 'vue';
 import { listFlightActions, listFlights, type Flight, type FlightAction } from '@/api/flights';
 import { fetchSession, type Session } from '@/api/sessions';
-import { useRecordLoad } from '@/composables/use-record-load';
+import { useLatestLoad } from '@/composables/use-latest-load';
 import { useClubStore } from './club';
 
 /**
@@ -14,7 +14,7 @@ export const useSessionReportStore = defineStore('session-report', () => {
   const session = shallowRef<Session | null>(null);
   const flights = shallowRef<Flight[]>([]);
   const actions = shallowRef<FlightAction[]>([]);
-  const { loading, error, notFound, run, reset } = useRecordLoad();
+  const { loading, error, notFound, run, reset } = useLatestLoad({ notFound: true });
 
   function labelOfAction(key: string): string {
     return actions.value.find((a) => a.key === key)?.label ?? key.replace(/_/g, ' ');

@@ -3,11 +3,11 @@ import { ApiRequestError } from '@/api/errors';
 import { loadErrorText } from './use-loader';
 
 /**
- * Loading state of a page about one record named in its address (a flight, a session): a newer load supersedes
- * an older one, a 404 NOT_FOUND is kept apart from other failures (the page then shows the not-found screen), and
- * any other failure becomes text for the inline error with its retry.
+ * Loading state of a store's read: a newer load supersedes an older one (its answers are dropped), and a failure
+ * becomes text for the inline error with its retry. With `notFound` (a page about one record named in its
+ * address: a flight, a session) a 404 NOT_FOUND is kept apart instead, and the page shows the not-found screen.
  */
-export function useRecordLoad() {
+export function useLatestLoad(options: { notFound?: boolean } = {}) {
   const loading = ref(false);
   const error = ref<string | null>(null);
   const notFound = ref(false);
@@ -24,20 +24,25 @@ export function useRecordLoad() {
       await read(isCurrent);
     } catch (cause) {
       if (!isCurrent()) return;
-      if (cause instanceof ApiRequestError && cause.code === 'NOT_FOUND') notFound.value = true;
+      if (options.notFound && cause instanceof ApiRequestError && cause.code === 'NOT_FOUND') notFound.value = true;
       else error.value = loadErrorText(cause);
     } finally {
       if (isCurrent()) loading.value = false;
     }
   }
 
-  /** Drops any load under way and its error (another club came into view). */
-  function reset(): void {
+  /** Drops any load under way: its answer, if it still comes, is ignored. */
+  function cancel(): void {
     generation++;
     loading.value = false;
+  }
+
+  /** Drops any load under way and its error (another club came into view). */
+  function reset(): void {
+    cancel();
     error.value = null;
     notFound.value = false;
   }
 
-  return { loading, error, notFound, run, reset };
+  return { loading, error, notFound, run, cancel, reset };
 }
