@@ -23,7 +23,7 @@ app.use(createPinia());
 app.use(PrimeVue, {
   theme: {
     preset: ArcwrightPreset,
-    // Light scheme only for now; no selector ever switches to dark.
+    // Light scheme only: no selector switches to dark.
     options: { darkModeSelector: false, cssLayer: false },
   },
 });

@@ -1,15 +1,8 @@
-import type { DataResponse, Role } from '@shared/types/api';
-import type {
-  AthleteCreateBody,
-  AthleteProfileSummary,
-  ClubOverview,
-  ClubProfile,
-  ClubUpdateBody,
-  MemberSummary,
-} from '@shared/schemas/club';
+import type { DataResponse } from '@shared/types/api';
+import type { ClubOverview, ClubProfile, ClubUpdateBody } from '@shared/schemas/club';
 import { http, type RequestOptions } from './http';
 
-export type { AthleteCreateBody, AthleteProfileSummary, ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary };
+export type { ClubOverview, ClubProfile, ClubUpdateBody };
 
 const club = (clubId: number) => `/clubs/${clubId}`;
 
@@ -23,24 +16,4 @@ export async function fetchClub(clubId: number, options?: RequestOptions): Promi
 
 export async function updateClub(clubId: number, changes: ClubUpdateBody, options?: RequestOptions): Promise<ClubProfile> {
   return (await http.patch<DataResponse<ClubProfile>>(club(clubId), changes, options)).data;
-}
-
-export async function fetchMembers(clubId: number, options?: RequestOptions): Promise<MemberSummary[]> {
-  return (await http.get<DataResponse<MemberSummary[]>>(`${club(clubId)}/members`, options)).data;
-}
-
-export async function updateMemberRole(clubId: number, memberId: number, role: Role, options?: RequestOptions): Promise<MemberSummary> {
-  return (await http.patch<DataResponse<MemberSummary>>(`${club(clubId)}/members/${memberId}`, { role }, options)).data;
-}
-
-export async function fetchAthletes(clubId: number, options?: RequestOptions): Promise<AthleteProfileSummary[]> {
-  return (await http.get<DataResponse<AthleteProfileSummary[]>>(`${club(clubId)}/athletes`, options)).data;
-}
-
-export async function fetchAthlete(clubId: number, athleteId: number, options?: RequestOptions): Promise<AthleteProfileSummary> {
-  return (await http.get<DataResponse<AthleteProfileSummary>>(`${club(clubId)}/athletes/${athleteId}`, options)).data;
-}
-
-export async function createAthlete(clubId: number, body: AthleteCreateBody, options?: RequestOptions): Promise<AthleteProfileSummary> {
-  return (await http.post<DataResponse<AthleteProfileSummary>>(`${club(clubId)}/athletes`, body, options)).data;
 }

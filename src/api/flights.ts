@@ -13,14 +13,20 @@ export async function listClipFlights(clubId: number, clipId: number, options?: 
   return http.get<ListResponse<Flight>>(`${clubBase(clubId)}/clips/${clipId}/flights`, options);
 }
 
-export async function listFlights(
-  clubId: number,
-  filters: { sessionId?: number; clipId?: number; athleteId?: number; status?: FlightStatus } = {},
-  options: RequestOptions = {},
-): Promise<ListResponse<Flight>> {
+/** Filters the server applies to the flights list; null or absent: no filter. */
+export interface FlightListFilters {
+  sessionId?: number | null;
+  clipId?: number | null;
+  athleteId?: number | null;
+  status?: FlightStatus | null;
+}
+
+/** Every flight of the club in view that passes the filters (an athlete's answer holds only her own). */
+export async function listFlights(clubId: number, filters: FlightListFilters = {}, options: RequestOptions = {}): Promise<ListResponse<Flight>> {
   return http.get<ListResponse<Flight>>(`${clubBase(clubId)}/flights`, { ...options, query: { ...filters } });
 }
 
+/** One flight with its traced points and a summary of its clip; another athlete's flight answers 404 NOT_FOUND. */
 export async function fetchFlight(clubId: number, flightId: number, options?: RequestOptions): Promise<FlightDetail> {
   return (await http.get<DataResponse<FlightDetail>>(flightPath(clubId, flightId), options)).data;
 }
@@ -31,6 +37,11 @@ export async function createFlight(clubId: number, clipId: number, body: FlightI
 
 export async function updateFlight(clubId: number, flightId: number, body: FlightPatch, options?: RequestOptions): Promise<Flight> {
   return (await http.patch<DataResponse<Flight>>(flightPath(clubId, flightId), body, options)).data;
+}
+
+/** Marks a fitted flight reviewed, or (`fitted`) takes the review back; other moves answer 409 CONFLICT. */
+export async function setFlightReviewed(clubId: number, flightId: number, reviewed: boolean, options?: RequestOptions): Promise<Flight> {
+  return updateFlight(clubId, flightId, { status: reviewed ? 'reviewed' : 'fitted' }, options);
 }
 
 export async function deleteFlight(clubId: number, flightId: number, options?: RequestOptions): Promise<void> {
@@ -65,10 +76,12 @@ export async function startFit(clubId: number, flightId: number, model?: string,
   return (await http.post<DataResponse<Job>>(`${flightPath(clubId, flightId)}/fit`, model ? { model } : {}, options)).data;
 }
 
+/** Every fit of a flight, newest first (refits never overwrite). */
 export async function listFits(clubId: number, flightId: number, options?: RequestOptions): Promise<Fit[]> {
   return (await http.get<DataResponse<Fit[]>>(`${flightPath(clubId, flightId)}/fits`, options)).data;
 }
 
+/** The club's actions (key → label) for filters and titles. */
 export async function listFlightActions(clubId: number, options?: RequestOptions): Promise<FlightAction[]> {
   return (await http.get<DataResponse<FlightAction[]>>(`${clubBase(clubId)}/flight-actions`, options)).data;
 }

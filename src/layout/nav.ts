@@ -17,19 +17,11 @@ const ADMIN: readonly Role[] = ['admin'];
 /** The rail, top to bottom. */
 export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Overview', icon: 'pi pi-compass', routeName: 'overview', roles: EVERYONE },
-  // -- sessions, clips (tracing helper) --
   { label: 'Sessions', icon: 'pi pi-calendar', routeName: 'sessions', roles: EVERYONE },
   { label: 'Clips', icon: 'pi pi-video', routeName: 'clips', roles: EVERYONE },
-  // -- end sessions, clips (tracing helper) --
-  // -- flights, flight report (report helper) --
   { label: 'Flights', icon: 'pi pi-chart-line', routeName: 'flights', roles: EVERYONE },
-  // -- end flights, flight report (report helper) --
-  // -- progress (progress helper) --
   { label: 'Progress', icon: 'pi pi-chart-bar', routeName: 'progress', roles: EVERYONE },
-  // -- end progress (progress helper) --
-  // -- planner (planner helper) --
   { label: 'Planner', icon: 'pi pi-sliders-h', routeName: 'planner', roles: EVERYONE },
-  // -- end planner (planner helper) --
   { label: 'Squad', icon: 'pi pi-users', routeName: 'squad', roles: STAFF },
   { label: 'Club', icon: 'pi pi-building', routeName: 'club', roles: ADMIN },
 ];

@@ -51,7 +51,6 @@ const routes: RouteRecordRaw[] = [
         component: () => import('@/views/ClubView.vue'),
         meta: { title: 'Club', roles: ADMIN },
       },
-      // -- sessions, clips, trace routes (tracing helper) --
       {
         path: 'sessions',
         name: 'sessions',
@@ -85,8 +84,6 @@ const routes: RouteRecordRaw[] = [
         props: true,
         meta: { title: 'Trace' },
       },
-      // -- end sessions, clips, trace routes (tracing helper) --
-      // -- flights, flight report routes (report helper) --
       {
         path: 'flights',
         name: 'flights',
@@ -100,8 +97,6 @@ const routes: RouteRecordRaw[] = [
         props: true,
         meta: { title: 'Flight report' },
       },
-      // -- end flights, flight report routes (report helper) --
-      // -- session report, progress routes (progress helper) --
       {
         path: 'sessions/:sessionId(\\d+)/report',
         name: 'session-report',
@@ -115,15 +110,12 @@ const routes: RouteRecordRaw[] = [
         component: () => import('@/views/ProgressView.vue'),
         meta: { title: 'Progress' },
       },
-      // -- end session report, progress routes (progress helper) --
-      // -- planner routes (planner helper) --
       {
         path: 'planner',
         name: 'planner',
         component: () => import('@/views/PlannerView.vue'),
         meta: { title: 'Planner' },
       },
-      // -- end planner routes (planner helper) --
       {
         path: ':pathMatch(.*)*',
         name: 'not-found',

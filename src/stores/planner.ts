@@ -5,10 +5,11 @@ import {
   type CarryGrid, type FitResult, type FlightSetup, type FlightSummary, type Sensitivities,
 } from '@shared/physics';
 import { fetchClub } from '@/api/clubs';
-import { fetchCurrentFit, fetchPlannerFlight, hasCurrentFit, listPlannableFlights, type Fit, type Flight } from '@/api/planner';
+import { fetchFlight, listFits, listFlights, type Fit, type Flight } from '@/api/flights';
+import { fitResultOf } from '@/components/report/fit-result';
 import { loadErrorText } from '@/composables/use-loader';
 import {
-  blankSetup, CARRY_MAP_ANGLES, carryMapSpeedAxis, DEFAULT_BLANK, inputsFromSetup, setupFromInputs,
+  blankSetup, CARRY_MAP_ANGLES, carryMapSpeedAxis, DEFAULT_BLANK, hasCurrentFit, inputsFromSetup, setupFromInputs,
   type BlankStart, type InputKey, type PlannerInputs,
 } from '@/components/planner/planner-model';
 import { formatQuantity, type UnitSystem } from '@/utils/units';
@@ -24,6 +25,13 @@ function physicsMessage(error: unknown): string {
   if (isPhysicsError(error)) return error.message;
   if (error instanceof Error) return error.message;
   return 'This launch cannot be flown: change the settings.';
+}
+
+/** A flight's current fit (`latestFit`), or its newest fit when that one is not listed, with the engine's result. */
+function currentFitOf(flight: Flight, fits: readonly Fit[]): { fit: Fit; result: FitResult } | null {
+  const fit = fits.find((f) => f.id === flight.latestFit?.id) ?? fits[0];
+  const result = fitResultOf(fit);
+  return fit && result ? { fit, result } : null;
 }
 
 type Outcome<T> = { ok: true; value: T } | { ok: false; message: string };
@@ -80,7 +88,8 @@ export const usePlannerStore = defineStore('planner', () => {
     flightsLoading.value = true;
     flightsError.value = null;
     try {
-      flights.value = await listPlannableFlights(clubId);
+      const answer = await listFlights(clubId);
+      flights.value = answer.data.filter(hasCurrentFit).sort((a, b) => b.createdAt.localeCompare(a.createdAt) || b.id - a.id);
     } catch (error) {
       flightsError.value = loadErrorText(error);
     } finally {
@@ -102,11 +111,11 @@ export const usePlannerStore = defineStore('planner', () => {
     flightLoading.value = true;
     flightError.value = null;
     try {
-      const found = flights.value.find((f) => f.id === flightId) ?? (await fetchPlannerFlight(clubId, flightId));
+      const found = flights.value.find((f) => f.id === flightId) ?? (await fetchFlight(clubId, flightId));
       if (!hasCurrentFit(found)) {
         throw new Error(`Flight ${flightId} has no current fit yet: fit it on the Trace screen, or pick another flight.`);
       }
-      const current = await fetchCurrentFit(clubId, found);
+      const current = currentFitOf(found, await listFits(clubId, found.id));
       if (mine !== generation) return;
       if (!current) throw new Error(`Flight ${flightId} has no fit yet: fit it on the Trace screen, or pick another flight.`);
       flight.value = found;

@@ -1,8 +1,11 @@
 import { defineStore } from 'pinia';
 import { computed, ref, shallowRef, watch } from 'vue';
-import { fetchProgress, fetchProgressAthletes, type AthleteProfileSummary, type Flight, type FlightAction, type Session } from '@/api/progress';
+import { fetchAthletes, type AthleteProfileSummary } from '@/api/athletes';
+import { listFlightActions, listFlights, type Flight, type FlightAction } from '@/api/flights';
+import { listSessions, type Session } from '@/api/sessions';
 import { measuredFlights, progressSummary, type MeasuredFlight } from '@/components/progress/progress-stats';
 import { loadErrorText } from '@/composables/use-loader';
+import { useLatestLoad } from '@/composables/use-latest-load';
 import { useClubStore } from './club';
 
 /**
@@ -16,11 +19,9 @@ export const useProgressStore = defineStore('progress', () => {
   const flights = shallowRef<Flight[]>([]);
   const sessions = shallowRef<Session[]>([]);
   const actions = shallowRef<FlightAction[]>([]);
-  const loading = ref(false);
-  const error = ref<string | null>(null);
+  const { loading, error, run, cancel, reset } = useLatestLoad();
   /** True once flights of the current pick have arrived (distinguishes "none yet" from "not loaded"). */
   const loaded = ref(false);
-  let generation = 0;
 
   const isStaff = computed(() => club.hasRole(['admin', 'coach']));
   const sessionDate = computed(() => new Map(sessions.value.map((s) => [s.id, s.date])));
@@ -39,7 +40,7 @@ export const useProgressStore = defineStore('progress', () => {
     const clubId = club.clubId;
     if (clubId === null || !isStaff.value) return;
     try {
-      athletes.value = await fetchProgressAthletes(clubId);
+      athletes.value = await fetchAthletes(clubId);
     } catch (cause) {
       error.value = loadErrorText(cause);
     }
@@ -49,27 +50,26 @@ export const useProgressStore = defineStore('progress', () => {
   async function load(): Promise<void> {
     const clubId = club.clubId;
     if (clubId === null) return;
-    const mine = ++generation;
     if (isStaff.value && athleteId.value === null) {
+      cancel();
       flights.value = [];
       loaded.value = false;
       return;
     }
-    loading.value = true;
-    error.value = null;
-    try {
+    await run(async (isCurrent) => {
       // Note: an athlete's list is scoped by the server; passing her id too would only repeat it.
-      const data = await fetchProgress(clubId, isStaff.value ? athleteId.value : null);
-      if (mine !== generation) return;
-      flights.value = data.flights;
-      sessions.value = data.sessions;
-      actions.value = data.actions;
+      const [list, sessionList, actionList] = await Promise.all([
+        listFlights(clubId, { athleteId: isStaff.value ? athleteId.value : null }),
+        listSessions(clubId),
+        // Labels only: without them the keys are shown in words.
+        listFlightActions(clubId).catch(() => [] as FlightAction[]),
+      ]);
+      if (!isCurrent()) return;
+      flights.value = list.data;
+      sessions.value = sessionList.data;
+      actions.value = actionList;
       loaded.value = true;
-    } catch (cause) {
-      if (mine === generation) error.value = loadErrorText(cause);
-    } finally {
-      if (mine === generation) loading.value = false;
-    }
+    });
   }
 
   async function pick(id: number | null): Promise<void> {
@@ -82,14 +82,13 @@ export const useProgressStore = defineStore('progress', () => {
   watch(
     () => club.clubId,
     () => {
-      generation++;
+      reset();
       athletes.value = [];
       athleteId.value = null;
       flights.value = [];
       sessions.value = [];
       actions.value = [];
       loaded.value = false;
-      error.value = null;
     },
   );
 

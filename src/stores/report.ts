@@ -3,10 +3,10 @@ import { computed, ref, shallowRef, watch } from 'vue';
 import type { Session } from '@shared/schemas/session';
 import { FLIGHT_STATUS_LABELS, type FlightStatus } from '@shared/schemas/flight';
 import { listSessions } from '@/api/sessions';
-import { fetchActions, fetchFlightList, type Flight, type FlightAction } from '@/api/reports';
+import { listFlightActions, listFlights, type Flight, type FlightAction } from '@/api/flights';
 import { ballName } from '@/components/trace/balls';
 import type { FlightCsvRow } from '@/components/report/flights-csv';
-import { loadErrorText } from '@/composables/use-loader';
+import { useLatestLoad } from '@/composables/use-latest-load';
 import { useClubStore } from './club';
 
 export interface FlightFilters {
@@ -32,10 +32,8 @@ export const useReportStore = defineStore('report', () => {
   const flights = shallowRef<Flight[]>([]);
   const sessions = shallowRef<Session[]>([]);
   const actions = shallowRef<FlightAction[]>([]);
-  const loading = ref(false);
-  const error = ref<string | null>(null);
+  const { loading, error, run, reset } = useLatestLoad();
   const filters = ref<FlightFilters>({ sessionId: null, athleteId: null, action: null, ballId: null, status: null });
-  let generation = 0;
 
   const sessionById = computed(() => new Map(sessions.value.map((s) => [s.id, s])));
   const actionLabel = computed(() => new Map(actions.value.map((a) => [a.key, a.label])));
@@ -100,24 +98,17 @@ export const useReportStore = defineStore('report', () => {
   async function load(): Promise<void> {
     const clubId = club.clubId;
     if (clubId === null) return;
-    const mine = ++generation;
-    loading.value = true;
-    error.value = null;
-    try {
+    await run(async (isCurrent) => {
       const [list, sessionList, actionList] = await Promise.all([
-        fetchFlightList(clubId),
+        listFlights(clubId),
         listSessions(clubId).then((a) => a.data).catch(() => [] as Session[]),
-        fetchActions(clubId).catch(() => [] as FlightAction[]),
+        listFlightActions(clubId).catch(() => [] as FlightAction[]),
       ]);
-      if (mine !== generation) return;
+      if (!isCurrent()) return;
       flights.value = list.data;
       sessions.value = sessionList;
       actions.value = actionList;
-    } catch (cause) {
-      if (mine === generation) error.value = loadErrorText(cause);
-    } finally {
-      if (mine === generation) loading.value = false;
-    }
+    });
   }
 
   /** Puts a changed flight (e.g. just reviewed) into the list without a reload. */
@@ -134,7 +125,7 @@ export const useReportStore = defineStore('report', () => {
   watch(
     () => club.clubId,
     () => {
-      generation++;
+      reset();
       flights.value = [];
       sessions.value = [];
       actions.value = [];

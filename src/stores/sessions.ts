@@ -2,7 +2,7 @@ import { defineStore } from 'pinia';
 import { ref, shallowRef, watch } from 'vue';
 import { fetchClub } from '@/api/clubs';
 import { deleteSession, listSessions, type Session, type SessionFilters } from '@/api/sessions';
-import { loadErrorText } from '@/composables/use-loader';
+import { useLatestLoad } from '@/composables/use-latest-load';
 import type { UnitSystem } from '@/utils/units';
 import { useClubStore } from './club';
 
@@ -14,29 +14,20 @@ export const useSessionsStore = defineStore('sessions', () => {
   const club = useClubStore();
   const items = shallowRef<Session[]>([]);
   const total = ref(0);
-  const loading = ref(false);
-  const error = ref<string | null>(null);
+  const { loading, error, run } = useLatestLoad();
   const filters = ref<SessionFilters>({ from: null, to: null, venue: null });
   const units = ref<UnitSystem>('metric');
   let unitsClubId: number | null = null;
-  let generation = 0;
 
   async function load(): Promise<void> {
     const clubId = club.clubId;
     if (clubId === null) return;
-    const mine = ++generation;
-    loading.value = true;
-    error.value = null;
-    try {
+    await run(async (isCurrent) => {
       const answer = await listSessions(clubId, filters.value);
-      if (mine !== generation) return;
+      if (!isCurrent()) return;
       items.value = answer.data;
       total.value = answer.meta.total;
-    } catch (cause) {
-      if (mine === generation) error.value = loadErrorText(cause);
-    } finally {
-      if (mine === generation) loading.value = false;
-    }
+    });
   }
 
   /** Loads the club's units preference once per club; metric until it is known or when it cannot be read. */

@@ -1,6 +1,6 @@
 import { SPORT_FOCUS_LABELS, type SportFocus } from '@shared/schemas/club';
 
-/** Screen names of the Overview counts; keys added by later features fall back to a readable form of the key. */
+/** Screen names of the Overview counts; any other key falls back to a readable form of itself. */
 const COUNT_LABELS: Record<string, { label: string; icon: string }> = {
   members: { label: 'Members', icon: 'pi pi-id-card' },
   admins: { label: 'Club admins', icon: 'pi pi-key' },

@@ -14,7 +14,7 @@ import {
   signOut,
 } from './support/browser';
 
-/** The rail entries of the shell itself; entries added by later features may sit between them. */
+/** The rail entries of the shell itself; other entries may sit between them. */
 const SHELL_ENTRIES = ['overview', 'squad', 'club'];
 
 describe('sign-in and the app shell', () => {

@@ -4,13 +4,20 @@
  * and the carry map's series (heatmap cells and the best-angle ridge). Pure TypeScript: no Vue, no DOM.
  */
 import {
-  airFromConditions, ballProps, BALLS, standardAtmosphere, STANDARD_GRAVITY,
+  airFromConditions, ballProps, BALLS, CELSIUS_ZERO_K, standardAtmosphere, STANDARD_GRAVITY,
   type Air, type CarryGrid, type FlightSetup, type Launch, type Sensitivities,
 } from '@shared/physics';
+import type { Flight } from '@shared/schemas/flight';
 import { displayUnit, fromSi, toSi, type Quantity, type UnitSystem } from '@/utils/units';
 
-/** 0 °C in kelvin. */
-const ZERO_CELSIUS_K = 273.15;
+/** Statuses whose latest fit is current (a `traced` flight's old fit is stale: its points changed since). */
+const CURRENT_FIT_STATUSES: readonly Flight['status'][] = ['fitted', 'reviewed', 'needs_attention'];
+
+/** Whether the Planner can start from a flight: it has a fit that matches its points. */
+export function hasCurrentFit(flight: Pick<Flight, 'latestFit' | 'status'>): boolean {
+  return flight.latestFit !== null && CURRENT_FIT_STATUSES.includes(flight.status);
+}
+
 
 /** Everything the sliders set, in SI (temperature in kelvin, altitude in m, humidity in %). */
 export interface PlannerInputs {
@@ -52,7 +59,7 @@ export function sliderSpecs(start: PlannerInputs): SliderSpec[] {
     { key: 'angleDeg', label: 'Launch angle', quantity: null, symbol: '°', min: -10, max: 80, step: 0.5 },
     { key: 'height', label: 'Launch height', quantity: 'length', min: 0, max: heightMax, step: 0.05 },
     { key: 'windSpeed', label: 'Wind along the flight', quantity: 'speed', min: -15, max: 15, step: 0.1, help: 'Positive is a tailwind, negative a headwind.' },
-    { key: 'temperatureK', label: 'Air temperature', quantity: 'temperature', min: -10 + ZERO_CELSIUS_K, max: 45 + ZERO_CELSIUS_K, step: 0.5 },
+    { key: 'temperatureK', label: 'Air temperature', quantity: 'temperature', min: -10 + CELSIUS_ZERO_K, max: 45 + CELSIUS_ZERO_K, step: 0.5 },
     { key: 'altitudeM', label: 'Altitude of the field', quantity: 'altitude', min: 0, max: 3000, step: 10 },
     { key: 'humidityPct', label: 'Relative humidity', quantity: null, symbol: '%', min: 0, max: 100, step: 1 },
   ];
@@ -64,7 +71,7 @@ export const INPUT_LIMITS: Record<InputKey, { min: number; max: number }> = {
   angleDeg: { min: -89, max: 89 },
   height: { min: 0, max: 100 },
   windSpeed: { min: -40, max: 40 },
-  temperatureK: { min: -40 + ZERO_CELSIUS_K, max: 60 + ZERO_CELSIUS_K },
+  temperatureK: { min: -40 + CELSIUS_ZERO_K, max: 60 + CELSIUS_ZERO_K },
   altitudeM: { min: -500, max: 10000 },
   humidityPct: { min: 0, max: 100 },
 };
@@ -137,7 +144,7 @@ export function inputsFromSetup(setup: FlightSetup): PlannerInputs {
     angleDeg: setup.launch.angleDeg,
     height: setup.launch.height,
     windSpeed: setup.windSpeed ?? 0,
-    temperatureK: air.temperatureK ?? 15 + ZERO_CELSIUS_K,
+    temperatureK: air.temperatureK ?? 15 + CELSIUS_ZERO_K,
     altitudeM: air.pressurePa === undefined ? 0 : altitudeForPressure(air.pressurePa),
     humidityPct: air.relativeHumidityPct ?? 0,
   };

@@ -3,7 +3,7 @@
  * speed and angle per athlete and action, and the series Progress draws over time. Pure functions on plain data so
  * that they are tested without a browser.
  */
-// Relative imports (not the @ aliases): keeps this module runnable under plain Vitest like the report helpers.
+// Relative imports (not the @ aliases): keeps this module runnable under plain Vitest like the report modules.
 import type { Flight, FlightStatus } from '../../../shared/schemas/flight';
 
 /** Fewer flights than this in a group and its spread is not worth reading. */
