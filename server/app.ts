@@ -19,15 +19,20 @@ import './http/types';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { clubsRouter } from './routes/clubs';
+import { devMailboxRouter } from './routes/dev-mailbox';
 import { healthRouter } from './routes/health';
+import { invitationLinksRouter, invitationsRouter } from './routes/invitations';
 import { membersRouter } from './routes/members';
 import { mountClipsApi } from './routes/clips'; // clips helper: sessions, clips, flights, jobs
+import { passwordResetRouter } from './routes/password-reset';
 
 export interface AppOptions {
   /** Overrides of the sign-in limit (failed attempts per IP and e-mail); tests lower it. */
   signinLimit?: Partial<LimitOptions>;
   /** Overrides of the sign-up limit (per IP); tests raise it. */
   signupLimit?: Partial<LimitOptions>;
+  /** Overrides of the password-reset request limit (per IP and e-mail). */
+  resetLimit?: Partial<LimitOptions>;
   /** Extra API routes mounted under /api/v1 just before the API 404 (tests use it to force failures). */
   extraApiRoutes?: (api: Router) => void;
   /** Directory of the built client; defaults to config.clientDir. */
@@ -93,9 +98,12 @@ export function createApp(options: AppOptions = {}): Express {
       signupLimit: { windowMs: config.rateLimit.signupWindowMs, max: config.rateLimit.signupMax, ...options.signupLimit },
     }),
   );
+  api.use(passwordResetRouter({ windowMs: config.rateLimit.resetWindowMs, max: config.rateLimit.resetMax, ...options.resetLimit }));
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
+  api.use(invitationsRouter);
+  api.use(invitationLinksRouter);
 
   // -- sessions, clips, flights, jobs (clips helper) --
   mountClipsApi(api);
@@ -105,6 +113,12 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(apiNotFound);
   app.use('/api/v1', api);
   app.use('/api', apiNotFound);
+
+  // The development mailbox exists only beside the fakes; otherwise /dev answers 404 rather than the client.
+  if (config.fakes.enabled) app.use('/dev', devMailboxRouter);
+  app.use('/dev', (_req, res) => {
+    res.status(404).type('text/plain').send('Not found. The development mailbox exists only while the local fakes are on (FAKES=1).');
+  });
 
   const clientDir = options.clientDir ?? config.clientDir;
   app.use(

@@ -64,4 +64,23 @@ Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
 export { Calibration, Clip, Fit, Flight, FlightAction, Job, Session, TrackPoint };
 // -- end sessions, clips, flights, jobs --
 
+// -- invitations and password reset --
+import { Invitation, initInvitation } from './invitation';
+import { PasswordReset, initPasswordReset } from './password-reset';
+
+initInvitation(sequelize);
+initPasswordReset(sequelize);
+
+// Deleting a club removes its invitations; a deleted profile or inviter leaves the invitation with a null link.
+Club.hasMany(Invitation, { foreignKey: 'clubId', as: 'invitations' });
+Invitation.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+Invitation.belongsTo(User, { foreignKey: 'invitedByUserId', as: 'invitedBy' });
+Invitation.belongsTo(User, { foreignKey: 'acceptedUserId', as: 'acceptedUser' });
+Invitation.belongsTo(AthleteProfile, { foreignKey: 'athleteProfileId', as: 'athleteProfile' });
+User.hasMany(PasswordReset, { foreignKey: 'userId', as: 'passwordResets' });
+PasswordReset.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+
+export { Invitation, PasswordReset };
+// -- end invitations and password reset --
+
 export { sequelize, AthleteProfile, Club, Membership, User };
