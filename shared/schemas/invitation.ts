@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import type { Me, Role } from '../types/api';
-import { displayNameSchema, PASSWORD_MAX_LENGTH } from './auth';
+import { displayNameSchema, PASSWORD_MAX_LENGTH, passwordProblem } from './auth';
 import { roleSchema } from './club';
 
 /** What is stored; "expired" is a pending invitation past its expiry. */
@@ -52,6 +52,17 @@ export const invitationAcceptSchema = z
   })
   .strict();
 export type InvitationAcceptBody = z.infer<typeof invitationAcceptSchema>;
+
+/** The join page's form for someone without an account: name and password are both needed; `email` gives the invited address. */
+export function invitationNewAccountSchema(email: () => string) {
+  return z
+    .object({ displayName: displayNameSchema, password: z.string({ error: 'Choose a password.' }) })
+    .strict()
+    .superRefine((body, ctx) => {
+      const problem = passwordProblem(body.password, email());
+      if (problem) ctx.addIssue({ code: 'custom', path: ['password'], message: problem });
+    });
+}
 
 /** One row of the admin's invitation list. */
 export interface InvitationSummary {

@@ -33,6 +33,11 @@ export async function updateMemberRole(clubId: number, memberId: number, role: R
   return (await http.patch<DataResponse<MemberSummary>>(`${club(clubId)}/members/${memberId}`, { role }, options)).data;
 }
 
+/** Takes the member out of the club; their flights and athlete profile stay. */
+export async function removeMember(clubId: number, memberId: number, options?: RequestOptions): Promise<void> {
+  await http.delete<void>(`${club(clubId)}/members/${memberId}`, options);
+}
+
 export async function fetchAthletes(clubId: number, options?: RequestOptions): Promise<AthleteProfileSummary[]> {
   return (await http.get<DataResponse<AthleteProfileSummary[]>>(`${club(clubId)}/athletes`, options)).data;
 }
