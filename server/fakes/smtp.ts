@@ -13,6 +13,7 @@ import type { AddressInfo, Server as NetServer } from 'node:net';
 import express, { type Express } from 'express';
 import { SMTPServer } from 'smtp-server';
 import type { SinkMessage } from '../../shared/types/mailbox';
+import { log } from '../logger';
 import { parseMail } from './mime';
 
 /** Messages kept; older ones are dropped first. */
@@ -104,6 +105,8 @@ function listen(server: NetServer, port: number, host: string, variable: string)
 export async function startMailSink(ports: { smtpPort: number; httpPort: number }, host = '127.0.0.1'): Promise<MailSink> {
   const store = new MailStore();
   const smtp = createSmtp(store);
+  // smtp-server re-emits socket and listen errors on itself; without a listener they would end the process.
+  smtp.on('error', (err: Error) => log.warn('SMTP sink error', { reason: err.message }));
   await listen(smtp.server, ports.smtpPort, host, 'SMTP_FAKE_PORT');
   const http = createServer(createMailboxApi(store));
   try {
