@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { baseUrl, collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, SCREENSHOT_DIR, signIn, signOut } from './support/browser';
+import type { Browser, Page } from 'playwright-core';
+import { baseUrl, DEMO_USERS, launchBrowser, screenshot, signIn, signOut, withPage as withPageOf } from './support/browser';
 
 interface SinkMessage {
   id: number;
@@ -43,21 +43,9 @@ describe('invitations and password reset by e-mail', () => {
     await browser?.close();
   });
 
-  async function withPage(run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
-    const context: BrowserContext = await newContext(browser);
-    const page = await context.newPage();
-    const errors = collectPageErrors(page);
-    try {
-      await run(page, errors);
-    } catch (error) {
-      await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
-      throw error;
-    } finally {
-      await context.close();
-    }
-  }
+  const withPage = (run: (page: Page, errors: string[]) => Promise<void>) => withPageOf(browser, run);
 
-  it('sends the invitation, and the invitee follows the e-mailed link, sets a password and signs in', async () => {
+  it('sends the invitation, and the invitee follows the e-mailed link, sets a password, signs in and sees only her flights', async () => {
     await withPage(async (page, errors) => {
       await signIn(page, DEMO_USERS.admin.email);
       await page.goto('/squad');
@@ -97,6 +85,14 @@ describe('invitations and password reset by e-mail', () => {
       await signOut(page);
       await signIn(page, invitee, firstPassword);
       await expect(page.getByTestId('rail-user-name').textContent()).resolves.toBe('Saskia Fenwright');
+
+      // The invitation was tied to the demo profile "Saskia Fenwright": she sees its flights and nobody else's.
+      await page.getByTestId('rail-flights').click();
+      await page.getByTestId('flights-table').waitFor();
+      const links = page.locator('[data-testid="flights-table"] [data-testid="flight-link"]');
+      await expect.poll(() => links.count()).toBeGreaterThan(0);
+      expect([...new Set((await links.allTextContents()).map((t) => t.trim()))]).toEqual(['Saskia Fenwright']);
+      await screenshot(page, 'joined-own-flights');
       expect(errors).toEqual([]);
     });
   });
