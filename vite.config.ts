@@ -15,7 +15,8 @@ export default defineConfig({
   server: {
     host: '127.0.0.1',
     port: 5173,
-    proxy: { '/api': `http://127.0.0.1:${apiPort}` },
+    // /dev is the development mailbox the API serves beside the fakes.
+    proxy: { '/api': `http://127.0.0.1:${apiPort}`, '/dev': `http://127.0.0.1:${apiPort}` },
   },
   build: { outDir: 'dist', chunkSizeWarningLimit: 1500 },
 });

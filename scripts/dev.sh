@@ -15,6 +15,8 @@ run_ts server/cli/seed.ts || die "Seeding the demo data failed (see above)."
 DEV_PORT="${DEV_PORT:-5173}"
 # Google sign-in must come back through Vite's origin so the session cookie and the page share a host.
 export GOOGLE_CALLBACK_URL="${GOOGLE_CALLBACK_URL:-http://127.0.0.1:$DEV_PORT/api/v1/auth/google/callback}"
+# Links in e-mails open the Vite dev server, which serves the client in this mode.
+export APP_URL="${APP_URL:-http://127.0.0.1:$DEV_PORT}"
 
 stop_children_on_exit
 
@@ -28,4 +30,5 @@ PIDS+=($!)
 
 wait_for_http "http://$HOST:$PORT/api/v1/health" 60 || warn "The API did not answer yet; see its log above."
 say "Dev server: http://127.0.0.1:$DEV_PORT (API on http://$HOST:$PORT). Ctrl+C stops everything."
+if [ "$FAKES" != "0" ]; then say "E-mails the app sends: http://127.0.0.1:$DEV_PORT/dev/mailbox"; fi
 wait -n "${PIDS[@]}"

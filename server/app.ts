@@ -20,10 +20,13 @@ import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
+import { devMailboxRouter } from './routes/dev-mailbox';
 import { flightsRouter } from './routes/flights';
 import { healthRouter } from './routes/health';
+import { invitationLinksRouter, invitationsRouter } from './routes/invitations';
 import { jobsRouter } from './routes/jobs';
 import { membersRouter } from './routes/members';
+import { passwordResetRouter } from './routes/password-reset';
 import { sessionsRouter } from './routes/sessions';
 
 export interface AppOptions {
@@ -31,6 +34,8 @@ export interface AppOptions {
   signinLimit?: Partial<LimitOptions>;
   /** Overrides of the sign-up limit (per IP); tests raise it. */
   signupLimit?: Partial<LimitOptions>;
+  /** Overrides of the password-reset request limit (per IP and e-mail). */
+  resetLimit?: Partial<LimitOptions>;
   /** Extra API routes mounted under /api/v1 just before the API 404 (tests use it to force failures). */
   extraApiRoutes?: (api: Router) => void;
   /** Directory of the built client; defaults to config.clientDir. */
@@ -96,9 +101,12 @@ export function createApp(options: AppOptions = {}): Express {
       signupLimit: { windowMs: config.rateLimit.signupWindowMs, max: config.rateLimit.signupMax, ...options.signupLimit },
     }),
   );
+  api.use(passwordResetRouter({ windowMs: config.rateLimit.resetWindowMs, max: config.rateLimit.resetMax, ...options.resetLimit }));
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
+  api.use(invitationsRouter);
+  api.use(invitationLinksRouter);
   api.use(sessionsRouter);
   api.use(clipsRouter);
   api.use(flightsRouter);
@@ -108,6 +116,12 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(apiNotFound);
   app.use('/api/v1', api);
   app.use('/api', apiNotFound);
+
+  // The development mailbox exists only beside the fakes; otherwise /dev answers 404 rather than the client.
+  if (config.fakes.enabled) app.use('/dev', devMailboxRouter);
+  app.use('/dev', (_req, res) => {
+    res.status(404).type('text/plain').send('Not found. The development mailbox exists only while the local fakes are on (FAKES=1).');
+  });
 
   const clientDir = options.clientDir ?? config.clientDir;
   app.use(

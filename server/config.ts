@@ -44,6 +44,8 @@ const host = str('HOST', '127.0.0.1');
 const port = int('PORT', 4780);
 const oauthFakePort = int('OAUTH_FAKE_PORT', 4781);
 const oauthFakeBase = `http://127.0.0.1:${oauthFakePort}`;
+const smtpFakePort = int('SMTP_FAKE_PORT', 4783);
+const publicUrl = str('PUBLIC_URL', '');
 const dataDir = resolve(process.cwd(), str('DATA_DIR', '.data'));
 
 /** The development session secret; fine on loopback, replaced through SESSION_SECRET anywhere else. */
@@ -58,7 +60,7 @@ export const config = {
   /** Where the built client lives (served with an SPA fallback). Relative paths resolve from the working directory. */
   clientDir: resolve(process.cwd(), str('CLIENT_DIR', 'dist')),
   /** Prefix for redirects after Google sign-in; empty keeps them relative to the host that called back. */
-  publicUrl: str('PUBLIC_URL', ''),
+  publicUrl,
   logLevel: str('LOG_LEVEL', isTest ? 'error' : 'info'),
   dataDir,
   db: {
@@ -83,6 +85,8 @@ export const config = {
     signinMax: int('SIGNIN_RATE_LIMIT_MAX', 10),
     signupWindowMs: int('SIGNUP_RATE_LIMIT_WINDOW_MINUTES', 60) * 60 * 1000,
     signupMax: int('SIGNUP_RATE_LIMIT_MAX', 30),
+    resetWindowMs: int('PASSWORD_RESET_RATE_LIMIT_WINDOW_MINUTES', 15) * 60 * 1000,
+    resetMax: int('PASSWORD_RESET_RATE_LIMIT_MAX', 5),
   },
   /** Number of reverse proxies in front of the app (0 when it listens directly), for req.ip. */
   trustProxy: int('TRUST_PROXY', 0),
@@ -92,6 +96,22 @@ export const config = {
     /** The invented person the OAuth fake approves when no `login_hint` is given. */
     oauthDefaultEmail: str('OAUTH_FAKE_EMAIL', 'wren.ashdown@fennickvale.example'),
     oauthDefaultName: str('OAUTH_FAKE_NAME', 'Wren Ashdown'),
+    /** SMTP port of the local mail sink (server/fakes/smtp.ts). */
+    smtpPort: smtpFakePort,
+    /** HTTP port where the sink lists what it received; the app's /dev/mailbox reads it. */
+    mailboxPort: int('MAILBOX_FAKE_PORT', 4784),
+  },
+  /** Outgoing e-mail (invitations, password reset) over SMTP; the defaults reach the local sink. */
+  mail: {
+    host: str('SMTP_HOST', '127.0.0.1'),
+    port: int('SMTP_PORT', smtpFakePort),
+    /** True for implicit TLS (port 465 usually); false lets STARTTLS be negotiated when offered. */
+    secure: flag('SMTP_SECURE', false),
+    user: str('SMTP_USER', ''),
+    password: str('SMTP_PASSWORD', ''),
+    from: str('MAIL_FROM', 'Arcwright <no-reply@arcwright.example>'),
+    /** Where links in e-mails point: the address people open the app at. */
+    appUrl: str('APP_URL', publicUrl || `http://${host}:${port}`).replace(/\/+$/, ''),
   },
   google: {
     enabled: flag('GOOGLE_SIGNIN', true),

@@ -12,6 +12,7 @@
 import { createHash, randomBytes } from 'node:crypto';
 import type { Server } from 'node:http';
 import express, { type Express, type Request, type Response } from 'express';
+import { escapeHtml } from '../http/html';
 
 export interface OAuthFakeOptions {
   clientId: string;
@@ -34,10 +35,6 @@ interface Grant {
 
 const CODE_TTL_MS = 5 * 60 * 1000;
 const TOKEN_TTL_S = 3600;
-
-function escapeHtml(text: string): string {
-  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] as string);
-}
 
 /** A stable, Google-like numeric subject id for an e-mail. */
 export function fakeSubject(email: string): string {

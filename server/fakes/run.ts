@@ -1,15 +1,17 @@
 /**
  * `npm run fakes`: starts every local stand-in for a hosted service, each on its own loopback port.
- * Now: the OAuth 2.0 provider (Google stand-in). Later issues add the payment provider fake and an SMTP sink
- * here, one `start...()` call each.
+ * The OAuth 2.0 provider (Google stand-in) and the SMTP sink with its mailbox listing; each further fake is
+ * one `start...()` call here.
  */
 import type { Server } from 'node:http';
 import { config } from '../config';
 import { log } from '../logger';
 import { startOAuthFake } from './oauth';
+import { startMailSink } from './smtp';
 
 async function main(): Promise<void> {
   const servers: Server[] = [];
+  const closers: (() => Promise<void>)[] = [];
 
   servers.push(
     await startOAuthFake(
@@ -24,15 +26,18 @@ async function main(): Promise<void> {
   );
   log.info(`OAuth fake (Google stand-in) on http://127.0.0.1:${config.fakes.oauthPort}`);
 
-  // Payment provider fake: started here when billing arrives.
-  // SMTP sink: started here when e-mail arrives.
+  const sink = await startMailSink({ smtpPort: config.fakes.smtpPort, httpPort: config.fakes.mailboxPort });
+  closers.push(sink.close);
+  log.info(`SMTP sink on 127.0.0.1:${sink.smtpPort}, its mailbox listing on http://127.0.0.1:${sink.httpPort}/messages`);
 
   const stop = () => {
     for (const server of servers) {
       server.close();
       server.closeAllConnections();
     }
-    process.exit(0);
+    // An SMTP client that keeps its connection open must not hold the exit up for long.
+    setTimeout(() => process.exit(0), 2000).unref();
+    void Promise.allSettled(closers.map((close) => close())).then(() => process.exit(0));
   };
   process.on('SIGINT', stop);
   process.on('SIGTERM', stop);

@@ -1,5 +1,5 @@
 /**
- * Rate limits of the sign-in and sign-up endpoints (express-rate-limit, in-memory per process).
+ * Rate limits of the sign-in, sign-up and password-reset endpoints (express-rate-limit, in-memory per process).
  */
 import type { Request, RequestHandler } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
@@ -19,6 +19,12 @@ function ipOf(req: Request): string {
   return ipKeyGenerator(req.ip ?? req.socket.remoteAddress ?? 'unknown');
 }
 
+/** The caller's IP address with the e-mail of the body. */
+function ipAndEmail(req: Request): string {
+  const email = typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase() : '';
+  return `${ipOf(req)}|${email}`;
+}
+
 /**
  * Failed sign-ins per IP address and e-mail: successful ones do not count, so a coach who types the
  * password right is never locked out by earlier typos beyond the window.
@@ -30,10 +36,7 @@ export function signinLimiter({ windowMs, max }: LimitOptions): RequestHandler {
     skipSuccessfulRequests: true,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
-    keyGenerator: (req) => {
-      const email = typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase() : '';
-      return `${ipOf(req)}|${email}`;
-    },
+    keyGenerator: ipAndEmail,
     handler: (_req, _res, next) => {
       next(
         new ApiError(
@@ -55,6 +58,20 @@ export function signupLimiter({ windowMs, max }: LimitOptions): RequestHandler {
     keyGenerator: (req) => ipOf(req),
     handler: (_req, _res, next) => {
       next(new ApiError('RATE_LIMITED', `Too many new accounts from this address. Wait ${minutes(windowMs)} and try again.`));
+    },
+  });
+}
+
+/** Password-reset requests per IP address and e-mail, so nobody can flood an inbox from the sign-in page. */
+export function resetLimiter({ windowMs, max }: LimitOptions): RequestHandler {
+  return rateLimit({
+    windowMs,
+    limit: max,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: ipAndEmail,
+    handler: (_req, _res, next) => {
+      next(new ApiError('RATE_LIMITED', `Too many password-reset requests for this e-mail. Wait ${minutes(windowMs)}, then check the inbox before asking again.`));
     },
   });
 }

@@ -10,8 +10,10 @@ import { Club, initClub } from './club';
 import { Fit, initFit } from './fit';
 import { Flight, initFlight } from './flight';
 import { FlightAction, initFlightAction } from './flight-action';
+import { Invitation, initInvitation } from './invitation';
 import { Job, initJob } from './job';
 import { Membership, initMembership } from './membership';
+import { PasswordReset, initPasswordReset } from './password-reset';
 import { Session, initSession } from './session';
 import { TrackPoint, initTrackPoint } from './track-point';
 import { User, initUser } from './user';
@@ -28,6 +30,8 @@ initFlight(sequelize);
 initTrackPoint(sequelize);
 initFit(sequelize);
 initJob(sequelize);
+initInvitation(sequelize);
+initPasswordReset(sequelize);
 
 // Foreign keys are `<model>_id` columns; deleting a club removes its memberships and profiles (see migrations).
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
@@ -58,4 +62,29 @@ Fit.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 Club.hasMany(FlightAction, { foreignKey: 'clubId', as: 'flightActions' });
 Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
 
-export { sequelize, AthleteProfile, Calibration, Clip, Club, Fit, Flight, FlightAction, Job, Membership, Session, TrackPoint, User };
+// Deleting a club removes its invitations; a deleted profile or inviter leaves the invitation with a null link.
+Club.hasMany(Invitation, { foreignKey: 'clubId', as: 'invitations' });
+Invitation.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+Invitation.belongsTo(User, { foreignKey: 'invitedByUserId', as: 'invitedBy' });
+Invitation.belongsTo(User, { foreignKey: 'acceptedUserId', as: 'acceptedUser' });
+Invitation.belongsTo(AthleteProfile, { foreignKey: 'athleteProfileId', as: 'athleteProfile' });
+User.hasMany(PasswordReset, { foreignKey: 'userId', as: 'passwordResets' });
+PasswordReset.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+
+export {
+  sequelize,
+  AthleteProfile,
+  Calibration,
+  Clip,
+  Club,
+  Fit,
+  Flight,
+  FlightAction,
+  Invitation,
+  Job,
+  Membership,
+  PasswordReset,
+  Session,
+  TrackPoint,
+  User,
+};

@@ -6,6 +6,7 @@
 import { Router, type Request, type Response, type NextFunction } from 'express';
 import passport from 'passport';
 import { signInSchema, signUpSchema } from '../../shared/schemas/auth';
+import { logIn, logOut } from '../auth/login';
 import { config } from '../config';
 import { log } from '../logger';
 import { csrfToken } from '../http/csrf';
@@ -18,14 +19,6 @@ import { loadMe, signUp } from '../services/auth';
 export interface AuthRouterOptions {
   signinLimit: LimitOptions;
   signupLimit: LimitOptions;
-}
-
-function logIn(req: Request, user: Express.User): Promise<void> {
-  return new Promise((resolve, reject) => req.login(user, (err: unknown) => (err ? reject(err) : resolve())));
-}
-
-function logOut(req: Request): Promise<void> {
-  return new Promise((resolve, reject) => req.logout((err: unknown) => (err ? reject(err) : resolve())));
 }
 
 function authenticateLocal(req: Request, res: Response): Promise<Express.User | false> {

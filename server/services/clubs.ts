@@ -2,7 +2,7 @@
  * Club profile, Overview counts (members and profiles here, the other resources from their services),
  * members and their roles.
  */
-import { fn, col } from 'sequelize';
+import { fn, col, type Transaction } from 'sequelize';
 import type { ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary } from '../../shared/schemas/club';
 import type { Role } from '../../shared/types/api';
 import { withTransaction } from '../db';
@@ -11,6 +11,8 @@ import type { ClubContext } from '../http/types';
 import { AthleteProfile, Club, Membership, User } from '../models';
 import { countClips, countProcessingClips } from './clips';
 import { countFlights } from './flights';
+import { countPendingAthleteInvitations } from './invitations';
+import { assertAthleteSeatFree } from './seats';
 import { countSessions } from './sessions';
 
 export function toClubProfile(club: Club): ClubProfile {
@@ -100,8 +102,17 @@ export async function listMembers(clubId: number): Promise<MemberSummary[]> {
   return members.sort((a, b) => a.displayName.localeCompare(b.displayName) || a.id - b.id);
 }
 
+/** Refuses to demote or remove the club's only admin (the club would have nobody to run it). */
+async function assertNotLastAdmin(membership: Membership, action: string, transaction: Transaction): Promise<void> {
+  if (membership.role !== 'admin') return;
+  const admins = await Membership.findAll({ where: { clubId: membership.clubId, role: 'admin' }, transaction, lock: transaction.LOCK.UPDATE });
+  if (admins.length <= 1) {
+    throw new ApiError('CONFLICT', `This member is the club’s only admin. Make another member admin first, then ${action}.`);
+  }
+}
+
 /**
- * Changes a member's role. The last admin cannot be demoted (the club would have nobody to run it).
+ * Changes a member's role. The last admin cannot be demoted; an athlete needs a free athlete seat.
  * A member made athlete gets an athlete profile when they have none, so their flights can be tagged.
  */
 export async function changeMemberRole(clubId: number, memberId: number, role: Role): Promise<MemberSummary> {
@@ -114,12 +125,8 @@ export async function changeMemberRole(clubId: number, memberId: number, role: R
     });
     if (!membership) throw notFound('member');
     if (membership.role === role) return;
-    if (membership.role === 'admin') {
-      const admins = await Membership.findAll({ where: { clubId, role: 'admin' }, transaction, lock: transaction.LOCK.UPDATE });
-      if (admins.length <= 1) {
-        throw new ApiError('CONFLICT', 'This member is the club’s only admin. Make another member admin first, then change this role.');
-      }
-    }
+    await assertNotLastAdmin(membership, 'change this role', transaction);
+    if (role === 'athlete') await assertAthleteSeatFree(clubId, await countPendingAthleteInvitations(clubId, transaction), transaction);
     membership.role = role;
     await membership.save({ transaction });
     if (role === 'athlete') {
@@ -134,4 +141,18 @@ export async function changeMemberRole(clubId: number, memberId: number, role: R
   });
   const [summary] = await memberSummaries(clubId, { id: memberId });
   return summary;
+}
+
+/**
+ * Takes a member out of the club. Their flights and athlete profile stay with the club: the profile is only
+ * unlinked from the account, so coaches keep the history. The last admin cannot be removed.
+ */
+export async function removeMember(clubId: number, memberId: number): Promise<void> {
+  await withTransaction(async (transaction) => {
+    const membership = await Membership.findOne({ where: { id: memberId, clubId }, transaction, lock: transaction.LOCK.UPDATE });
+    if (!membership) throw notFound('member');
+    await assertNotLastAdmin(membership, 'remove this one', transaction);
+    await AthleteProfile.update({ userId: null }, { where: { clubId, userId: membership.userId }, transaction });
+    await membership.destroy({ transaction });
+  });
 }

@@ -13,3 +13,8 @@ export async function fetchMembers(clubId: number, options?: RequestOptions): Pr
 export async function updateMemberRole(clubId: number, memberId: number, role: Role, options?: RequestOptions): Promise<MemberSummary> {
   return (await http.patch<DataResponse<MemberSummary>>(`${base(clubId)}/${memberId}`, { role }, options)).data;
 }
+
+/** Takes the member out of the club; their flights and athlete profile stay. */
+export async function removeMember(clubId: number, memberId: number, options?: RequestOptions): Promise<void> {
+  await http.delete<void>(`${base(clubId)}/${memberId}`, options);
+}

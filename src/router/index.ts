@@ -34,6 +34,20 @@ const routes: RouteRecordRaw[] = [
     meta: { title: 'Sign up', public: true },
   },
   {
+    path: '/join/:token',
+    name: 'join',
+    component: () => import('@/views/JoinView.vue'),
+    props: true,
+    meta: { title: 'Join a club', public: true },
+  },
+  {
+    path: '/reset-password/:token',
+    name: 'reset-password',
+    component: () => import('@/views/ResetPasswordView.vue'),
+    props: true,
+    meta: { title: 'Choose a new password', public: true },
+  },
+  {
     path: '/',
     component: AppLayout,
     children: [

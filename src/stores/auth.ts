@@ -51,6 +51,12 @@ export const useAuthStore = defineStore('auth', () => {
     }
   }
 
+  /** Takes the signed-in user from an answer that signed them in (accepting an invitation). */
+  function adopt(answer: Me): void {
+    me.value = answer;
+    loaded.value = true;
+  }
+
   /** Drops the user locally (after sign-out, or when the server says the session ended). */
   function forget(): void {
     me.value = null;
@@ -63,5 +69,5 @@ export const useAuthStore = defineStore('auth', () => {
     if (membership) membership.clubName = clubName;
   }
 
-  return { me, loaded, isSignedIn, user, loadMe, signIn, signUp, signOut, forget, renameClub };
+  return { me, loaded, isSignedIn, user, loadMe, signIn, signUp, signOut, adopt, forget, renameClub };
 });

@@ -1,7 +1,8 @@
 /**
  * Global setup of the browser tests (vitest.e2e.config.ts): a fresh database `arcwright_e2e` (E2E_DB_NAME)
- * migrated and seeded with the demo club, then the OAuth fake and the app (serving the built client from
- * dist/) started as child processes on free ports (E2E_PORT default 4790, E2E_OAUTH_PORT default 4791).
+ * migrated and seeded with the demo club, then the fakes (OAuth stand-in, SMTP sink) and the app (serving the
+ * built client from dist/) started as child processes on free ports (E2E_PORT default 4790, E2E_OAUTH_PORT
+ * default 4791, E2E_SMTP_PORT default 4794, E2E_MAILBOX_PORT default 4795).
  * The app's URL is provided to tests as `inject('baseUrl')`, set as E2E_BASE_URL and written to
  * test-results/e2e-base-url.txt. Server output goes to test-results/e2e-server.log. Teardown stops both.
  */
@@ -115,6 +116,8 @@ export default async function setup(project: TestProject): Promise<() => Promise
 
   const appPort = await freePort(Number(process.env.E2E_PORT ?? 4790));
   const oauthPort = await freePort(Number(process.env.E2E_OAUTH_PORT ?? 4791));
+  const smtpPort = await freePort(Number(process.env.E2E_SMTP_PORT ?? 4794));
+  const mailboxPort = await freePort(Number(process.env.E2E_MAILBOX_PORT ?? 4795));
   const baseUrl = `http://${HOST}:${appPort}`;
   const oauthBase = `http://${HOST}:${oauthPort}`;
 
@@ -132,6 +135,12 @@ export default async function setup(project: TestProject): Promise<() => Promise
     CLIENT_DIR: clientDir,
     STORAGE_DIR: join(ROOT, '.data', 'e2e-storage'),
     OAUTH_FAKE_PORT: String(oauthPort),
+    FAKES: '1',
+    SMTP_FAKE_PORT: String(smtpPort),
+    MAILBOX_FAKE_PORT: String(mailboxPort),
+    SMTP_HOST: HOST,
+    SMTP_PORT: String(smtpPort),
+    APP_URL: baseUrl,
     GOOGLE_SIGNIN: '1',
     GOOGLE_AUTH_URL: `${oauthBase}/authorize`,
     GOOGLE_TOKEN_URL: `${oauthBase}/token`,
@@ -166,6 +175,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
   try {
     const fakes = start('server/fakes/run.ts');
     await waitForHealth(`${oauthBase}/health`, fakes, 30);
+    await waitForHealth(`http://${HOST}:${mailboxPort}/health`, fakes, 30);
     const app = start('server/index.ts');
     await waitForHealth(`${baseUrl}/api/v1/health`, app, 60);
   } catch (err) {

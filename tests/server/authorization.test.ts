@@ -4,14 +4,18 @@
  * route of these routers cannot be added without a row here.
  */
 import type { Router } from 'express';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { newToken } from '../../server/auth/tokens';
+import { Invitation } from '../../server/models';
 import { athletesRouter } from '../../server/routes/athletes';
 import { clubsRouter } from '../../server/routes/clubs';
+import { invitationsRouter } from '../../server/routes/invitations';
 import { membersRouter } from '../../server/routes/members';
-import { createClubFixture, testApp, type ApiClient, type ClubFixture } from '../support/app';
+import { addMember, createClubFixture, testApp, uniqueEmail, type ApiClient, type ClubFixture } from '../support/app';
+import { useTestMailbox, type TestMailbox } from '../support/mail';
 
 type Who = 'admin' | 'coach' | 'athlete' | 'outsider' | 'anonymous';
-type Method = 'get' | 'post' | 'patch';
+type Method = 'get' | 'post' | 'patch' | 'delete';
 
 interface Case {
   method: Method;
@@ -24,6 +28,8 @@ interface Case {
 }
 
 const club = (f: ClubFixture) => `/api/v1/clubs/${f.clubId}`;
+/** Records the matrix acts on, made for it in beforeAll. */
+const targets = { removableMemberId: 0, resendInvitationId: 0, revokeInvitationId: 0 };
 
 const CASES: Case[] = [
   {
@@ -56,6 +62,37 @@ const CASES: Case[] = [
     route: '/clubs/:clubId/members/:memberId',
     path: (f) => `${club(f)}/members/${f.members.coach.membershipId}`,
     body: () => ({ role: 'coach' }),
+    expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'delete',
+    route: '/clubs/:clubId/members/:memberId',
+    path: (f) => `${club(f)}/members/${targets.removableMemberId}`,
+    expect: { admin: 204, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/invitations',
+    path: (f) => `${club(f)}/invitations`,
+    expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/invitations',
+    path: (f) => `${club(f)}/invitations`,
+    body: () => ({ email: uniqueEmail('matrix'), role: 'coach' }),
+    expect: { admin: 201, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/invitations/:invitationId/resend',
+    path: (f) => `${club(f)}/invitations/${targets.resendInvitationId}/resend`,
+    expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/invitations/:invitationId/revoke',
+    path: (f) => `${club(f)}/invitations/${targets.revokeInvitationId}/revoke`,
     expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
   },
   {
@@ -96,12 +133,22 @@ function routesOf(router: Router): string[] {
 
 describe('authorization matrix', () => {
   let f: ClubFixture;
+  let mail: TestMailbox;
   beforeAll(async () => {
+    mail = await useTestMailbox();
     f = await createClubFixture(testApp());
+    targets.removableMemberId = (await addMember(f.clubId, 'coach', 'Removable Coach')).membershipId;
+    const invitation = (email: string) =>
+      Invitation.create({ clubId: f.clubId, email, role: 'coach', athleteProfileId: null, invitedByUserId: null, tokenHash: newToken().hash, expiresAt: new Date(Date.now() + 86_400_000), sentAt: new Date() });
+    targets.resendInvitationId = (await invitation(uniqueEmail('resend'))).id;
+    targets.revokeInvitationId = (await invitation(uniqueEmail('revoke'))).id;
+  });
+  afterAll(async () => {
+    await mail.close();
   });
 
-  it('covers every route of the club, member and athlete routers when a route is added', () => {
-    const declared = [clubsRouter, membersRouter, athletesRouter].flatMap(routesOf).sort();
+  it('covers every route of the club, member, athlete and invitation routers when a route is added', () => {
+    const declared = [clubsRouter, membersRouter, athletesRouter, invitationsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(CASES.map((c) => `${c.method} ${c.route}`))].sort();
     expect(tested).toEqual(declared);
   });

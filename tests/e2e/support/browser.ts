@@ -5,7 +5,7 @@
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
-import { inject } from 'vitest';
+import { expect, inject } from 'vitest';
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -132,4 +132,22 @@ export async function railEntries(page: Page): Promise<string[]> {
     links.map((link) => link.getAttribute('data-testid') ?? ''),
   );
   return ids.map((id) => id.replace(/^rail-/, ''));
+}
+
+/**
+ * Runs `run` on a page of a fresh context, with the page errors it collects; closes the context afterwards.
+ * When `run` fails, the page as it was is saved as `failed-<test name>.png` to read beside the error.
+ */
+export async function withPage(browser: Browser, run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
+  const context: BrowserContext = await newContext(browser);
+  const page = await context.newPage();
+  const errors = collectPageErrors(page);
+  try {
+    await run(page, errors);
+  } catch (error) {
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
+    throw error;
+  } finally {
+    await context.close();
+  }
 }

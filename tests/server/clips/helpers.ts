@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Response } from 'supertest';
 import { QueryTypes } from 'sequelize';
-import { sequelize } from '../../../server/models';
+import { Clip, sequelize } from '../../../server/models';
 import { LocalDiskStorage, setStorage } from '../../../server/storage';
 import { renderFlightClip, type RenderedClip } from '../../../server/video/synth';
 import type { ApiClient, ClubFixture } from '../../support/app';
@@ -121,4 +121,27 @@ export async function getJob(client: ApiClient, clubId: number, jobId: number): 
   const res = await client.get(`/api/v1/clubs/${clubId}/jobs/${jobId}`);
   if (res.status !== 200) throw new Error(`job read failed: ${res.status} ${JSON.stringify(res.body)}`);
   return (res.body as { data: JobBody }).data;
+}
+
+/** A ready clip row written straight to the database, for tests that need flights but not the clip pipeline. */
+export async function insertClip(clubId: number, sessionId: number, label = 'seeded'): Promise<Clip> {
+  return Clip.create({
+    clubId,
+    sessionId,
+    label,
+    kind: 'video',
+    originalName: `${label}.mp4`,
+    sizeBytes: 1,
+    sourceKey: 'none',
+    container: 'mp4',
+    codec: 'h264',
+    width: 320,
+    height: 240,
+    playbackFps: 30,
+    captureFps: 30,
+    frameCount: 48,
+    frameNamePattern: null,
+    strip: null,
+    failureReason: null,
+  });
 }
