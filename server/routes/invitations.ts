@@ -2,8 +2,6 @@ import { Router, type Request } from 'express';
 import {
   invitationAcceptSchema,
   invitationCreateSchema,
-  type InvitationAcceptBody,
-  type InvitationCreateBody,
 } from '../../shared/schemas/invitation';
 import { logIn } from '../auth/login';
 import { ApiError, parseId } from '../http/errors';
@@ -29,7 +27,7 @@ invitationsRouter.get('/clubs/:clubId/invitations', clubAccess('admin'), async (
 });
 
 invitationsRouter.post('/clubs/:clubId/invitations', clubAccess('admin'), validate(invitationCreateSchema), async (req, res) => {
-  res.status(201).json({ data: await createInvitation(clubOf(req).id, signedInUser(req), req.body as InvitationCreateBody) });
+  res.status(201).json({ data: await createInvitation(clubOf(req).id, signedInUser(req), req.body) });
 });
 
 invitationsRouter.post('/clubs/:clubId/invitations/:invitationId/resend', clubAccess('admin'), async (req, res) => {
@@ -48,7 +46,7 @@ invitationLinksRouter.get('/invitations/:token', publicRoute, async (req, res) =
 });
 
 invitationLinksRouter.post('/invitations/:token/accept', publicRoute, validate(invitationAcceptSchema), async (req, res) => {
-  const { accepted, newUser } = await acceptInvitation(String(req.params.token), req.body as InvitationAcceptBody, req.user);
+  const { accepted, newUser } = await acceptInvitation(String(req.params.token), req.body, req.user);
   if (newUser) await logIn(req, newUser);
   const userId = newUser?.id ?? req.user?.id;
   const me = userId === undefined ? null : await loadMe(userId);

@@ -3,8 +3,6 @@ import {
   PASSWORD_RESET_REQUESTED,
   passwordResetRequestSchema,
   passwordResetSchema,
-  type PasswordResetBody,
-  type PasswordResetRequestBody,
 } from '../../shared/schemas/password-reset';
 import { resetLimiter, type LimitOptions } from '../http/rate-limit';
 import { publicRoute } from '../middleware/authorize';
@@ -17,7 +15,7 @@ export function passwordResetRouter(limit: LimitOptions): Router {
 
   // The same answer, at once, whether or not the address has an account.
   router.post('/auth/password-reset', publicRoute, validate(passwordResetRequestSchema), resetLimiter(limit), (req, res) => {
-    requestPasswordResetInBackground((req.body as PasswordResetRequestBody).email, req.requestId);
+    requestPasswordResetInBackground(req.body.email, req.requestId);
     res.status(202).json({ data: { message: PASSWORD_RESET_REQUESTED } });
   });
 
@@ -26,7 +24,7 @@ export function passwordResetRouter(limit: LimitOptions): Router {
   });
 
   router.post('/auth/password-reset/:token', publicRoute, validate(passwordResetSchema), async (req, res) => {
-    await resetPassword(String(req.params.token), (req.body as PasswordResetBody).password, req.user ? req.sessionID : undefined);
+    await resetPassword(String(req.params.token), req.body.password, req.user ? req.sessionID : undefined);
     res.json({ data: { message: 'Your password is changed and every other session is signed out. Sign in with the new password.' } });
   });
 
