@@ -44,6 +44,7 @@ const host = str('HOST', '127.0.0.1');
 const port = int('PORT', 4780);
 const oauthFakePort = int('OAUTH_FAKE_PORT', 4781);
 const oauthFakeBase = `http://127.0.0.1:${oauthFakePort}`;
+const paymentFakePort = int('PAYMENT_FAKE_PORT', 4782);
 const dataDir = resolve(process.cwd(), str('DATA_DIR', '.data'));
 
 /** The development session secret; fine on loopback, replaced through SESSION_SECRET anywhere else. */
@@ -92,6 +93,28 @@ export const config = {
     /** The invented person the OAuth fake approves when no `login_hint` is given. */
     oauthDefaultEmail: str('OAUTH_FAKE_EMAIL', 'wren.ashdown@fennickvale.example'),
     oauthDefaultName: str('OAUTH_FAKE_NAME', 'Wren Ashdown'),
+    paymentPort: paymentFakePort,
+  },
+  /**
+   * The payment provider, reached through its SDK. The defaults point at the local fake
+   * (server/fakes/payment.ts); production sets the provider's host, port 443, https and real keys.
+   */
+  payment: {
+    apiHost: str('PAYMENT_API_HOST', '127.0.0.1'),
+    apiPort: int('PAYMENT_API_PORT', paymentFakePort),
+    apiProtocol: str('PAYMENT_API_PROTOCOL', 'http') as 'http' | 'https',
+    secretKey: str('PAYMENT_SECRET_KEY', 'sk_test_arcwright_local'),
+    /** Signs the provider's webhooks; the fake signs with the same value. */
+    webhookSecret: str('PAYMENT_WEBHOOK_SECRET', 'whsec_arcwright_local_development_secret'),
+    /** Where the fake delivers its webhooks (the app's webhook endpoint). */
+    webhookUrl: str('PAYMENT_WEBHOOK_URL', `http://${host}:${port}/api/v1/billing/webhook`),
+    /** Oldest webhook signature accepted, in seconds (the SDK's default is 300). */
+    webhookToleranceSeconds: int('PAYMENT_WEBHOOK_TOLERANCE_SECONDS', 300),
+  },
+  billing: {
+    /** A new club's free trial: its length and athlete seats. */
+    trialDays: int('TRIAL_DAYS', 14),
+    trialAthleteSeats: int('TRIAL_ATHLETE_SEATS', 10),
   },
   google: {
     enabled: flag('GOOGLE_SIGNIN', true),

@@ -35,7 +35,7 @@ interface Grant {
 const CODE_TTL_MS = 5 * 60 * 1000;
 const TOKEN_TTL_S = 3600;
 
-function escapeHtml(text: string): string {
+export function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] as string);
 }
 

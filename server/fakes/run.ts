@@ -1,12 +1,12 @@
 /**
  * `npm run fakes`: starts every local stand-in for a hosted service, each on its own loopback port.
- * Now: the OAuth 2.0 provider (Google stand-in). Later issues add the payment provider fake and an SMTP sink
- * here, one `start...()` call each.
+ * The OAuth 2.0 provider (Google stand-in) and the payment provider; each local stand-in is one `start...()` call.
  */
 import type { Server } from 'node:http';
 import { config } from '../config';
 import { log } from '../logger';
 import { startOAuthFake } from './oauth';
+import { startPaymentFake } from './payment';
 
 async function main(): Promise<void> {
   const servers: Server[] = [];
@@ -24,7 +24,13 @@ async function main(): Promise<void> {
   );
   log.info(`OAuth fake (Google stand-in) on http://127.0.0.1:${config.fakes.oauthPort}`);
 
-  // Payment provider fake: started here when billing arrives.
+  const payment = await startPaymentFake(
+    { secretKey: config.payment.secretKey, webhookSecret: config.payment.webhookSecret, webhookUrl: config.payment.webhookUrl },
+    config.fakes.paymentPort,
+  );
+  servers.push(payment.server);
+  log.info(`Payment provider fake on http://127.0.0.1:${payment.port} (webhooks to ${config.payment.webhookUrl})`);
+
   // SMTP sink: started here when e-mail arrives.
 
   const stop = () => {

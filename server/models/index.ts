@@ -65,3 +65,21 @@ export { Calibration, Clip, Fit, Flight, FlightAction, Job, Session, TrackPoint 
 // -- end sessions, clips, flights, jobs --
 
 export { sequelize, AthleteProfile, Club, Membership, User };
+
+// -- seats, subscription, billing --
+import { BillingEvent, initBillingEvent } from './billing-event';
+import { BillingInvoice, initBillingInvoice } from './billing-invoice';
+import { ClubSubscription, initClubSubscription } from './club-subscription';
+
+initClubSubscription(sequelize);
+initBillingEvent(sequelize);
+initBillingInvoice(sequelize);
+
+// Deleting a club removes its subscription row and invoices (ON DELETE CASCADE in the migrations).
+Club.hasOne(ClubSubscription, { foreignKey: 'clubId', as: 'subscription' });
+ClubSubscription.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+Club.hasMany(BillingInvoice, { foreignKey: 'clubId', as: 'invoices' });
+BillingInvoice.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+
+export { BillingEvent, BillingInvoice, ClubSubscription };
+// -- end seats, subscription, billing --

@@ -15,6 +15,7 @@ import { Clip } from '../models';
 import { registerOverviewCount } from '../services/clubs';
 import { countFlights } from '../services/flights';
 import { countSessions, findVisibleSession } from '../services/sessions';
+import { assertClubCanRecord } from '../services/subscriptions';
 import { flightsRouter } from './flights';
 import { jobsRouter } from './jobs';
 import { confirmed, sessionsRouter } from './sessions';
@@ -82,8 +83,9 @@ clipsRouter.get('/clubs/:clubId/sessions/:sessionId/clips', clubAccess(...ANY_RO
 clipsRouter.post('/clubs/:clubId/sessions/:sessionId/clips', clubAccess('admin', 'coach'), async (req, res) => {
   const club = clubOf(req);
   const sessionId = parseId(req.params.sessionId, 'session');
-  // 404 before reading a byte of the upload.
+  // 404, or a lapsed subscription, before reading a byte of the upload.
   await findVisibleSession(club, sessionId);
+  await assertClubCanRecord(club.id);
   const maxBytes = config.uploads.maxBytes;
   const { workDir, files } = await receive(req, res, maxBytes);
   const parsed = clipUploadFieldsSchema.safeParse(req.body ?? {});

@@ -5,6 +5,7 @@ import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
 import { enqueueRefits } from '../services/fits';
 import { createSession, deleteSession, getSession, listSessions, updateSession } from '../services/sessions';
+import { assertClubCanRecord } from '../services/subscriptions';
 
 /** `?confirm=true` (or `{ confirm: true }` in the body) confirms deleting something that holds flights. */
 export function confirmed(req: Request): boolean {
@@ -24,6 +25,7 @@ sessionsRouter.get('/clubs/:clubId/sessions', clubAccess(...ANY_ROLE), async (re
 });
 
 sessionsRouter.post('/clubs/:clubId/sessions', clubAccess('admin', 'coach'), validate(sessionInputSchema), async (req, res) => {
+  await assertClubCanRecord(clubOf(req).id);
   res.status(201).json({ data: await createSession(clubOf(req), req.body as SessionInput) });
 });
 

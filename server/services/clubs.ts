@@ -8,6 +8,7 @@ import { withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { AthleteProfile, Club, Membership, User } from '../models';
+import { getSubscriptionSummary } from './subscriptions';
 
 export function toClubProfile(club: Club): ClubProfile {
   return {
@@ -25,8 +26,10 @@ async function findClub(clubId: number): Promise<Club> {
   return club;
 }
 
+/** The club profile with the subscription summary every member needs for the banner. */
 export async function getClub(clubId: number): Promise<ClubProfile> {
-  return toClubProfile(await findClub(clubId));
+  const profile = toClubProfile(await findClub(clubId));
+  return { ...profile, subscription: await getSubscriptionSummary(clubId) };
 }
 
 export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<ClubProfile> {
