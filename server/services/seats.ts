@@ -37,7 +37,7 @@ export function assertSeatsCoverAthletes(seats: number, used: number): void {
     const remove = used - seats;
     throw new ApiError(
       'SEATS_IN_USE',
-      `${used} athletes hold seats, so ${seatWord(seats)} are too few. Remove ${remove} athlete${remove === 1 ? '' : 's'} first (on Squad), or keep at least ${used} seats.`,
+      `${used} athletes hold seats, so ${seatWord(seats)} ${seats === 1 ? 'is' : 'are'} too few. Remove ${remove} athlete${remove === 1 ? '' : 's'} first (on Squad), or keep at least ${used} seats.`,
       { seats: `Keep at least ${used} seats, or remove ${remove} athlete${remove === 1 ? '' : 's'} first.` },
     );
   }

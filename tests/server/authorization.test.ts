@@ -3,12 +3,12 @@
  * another club's admin, anonymous} with the expected status. A completeness check makes sure a new
  * route of these routers cannot be added without a row here.
  */
-import type { Router } from 'express';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { athletesRouter } from '../../server/routes/athletes';
 import { clubsRouter } from '../../server/routes/clubs';
 import { membersRouter } from '../../server/routes/members';
 import { createClubFixture, testApp, type ApiClient, type ClubFixture } from '../support/app';
+import { routesOf } from '../support/routes';
 
 type Who = 'admin' | 'coach' | 'athlete' | 'outsider' | 'anonymous';
 type Method = 'get' | 'post' | 'patch';
@@ -85,14 +85,6 @@ const CASES: Case[] = [
     expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
   },
 ];
-
-/** Routes as `method path` from an Express 5 router's own table. */
-function routesOf(router: Router): string[] {
-  const stack = (router as unknown as { stack: { route?: { path: string; methods: Record<string, boolean> } }[] }).stack;
-  return stack
-    .filter((layer) => layer.route)
-    .flatMap((layer) => Object.keys(layer.route!.methods).map((m) => `${m} ${layer.route!.path}`));
-}
 
 describe('authorization matrix', () => {
   let f: ClubFixture;

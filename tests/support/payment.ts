@@ -8,10 +8,11 @@ import type { AddressInfo } from 'node:net';
 import type { Express } from 'express';
 import request from 'supertest';
 import Stripe from 'stripe';
+import { afterAll, beforeAll } from 'vitest';
 import { config } from '../../server/config';
 import { FAKE_CARD_PAYS, startPaymentFake, type PaymentFake } from '../../server/fakes/payment';
 import { ClubSubscription } from '../../server/models';
-import type { ApiClient } from './app';
+import { createClubFixture, testApp, type ApiClient, type ClubFixture } from './app';
 
 export interface PaymentHarness {
   fake: PaymentFake;
@@ -47,6 +48,26 @@ export async function startPaymentHarness(app: Express): Promise<PaymentHarness>
       await Promise.all([close(server), close(appServer)]);
     },
   };
+}
+
+export interface PaymentSuite {
+  app: Express;
+  harness: PaymentHarness;
+  /** A club with a member of each role and another club's admin. */
+  fixture: ClubFixture;
+}
+
+/** For one test file: the app with the payment harness and a club fixture, set up before the tests and stopped after. */
+export function usePaymentSuite(): PaymentSuite {
+  const suite = { app: testApp() } as PaymentSuite;
+  beforeAll(async () => {
+    suite.harness = await startPaymentHarness(suite.app);
+    suite.fixture = await createClubFixture(suite.app);
+  });
+  afterAll(async () => {
+    await suite.harness?.stop();
+  });
+  return suite;
 }
 
 const signer = new Stripe('sk_test_signer', { telemetry: false });

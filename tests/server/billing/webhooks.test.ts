@@ -2,24 +2,14 @@
  * The payment webhook: signatures checked with the SDK on the raw body, replays and out-of-order events,
  * bodies that are not JSON, and the whole purchase through the fake's hosted checkout (declined, then paid).
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { FAKE_CARD_DECLINED } from '../../../server/fakes/payment';
 import { BillingEvent, BillingInvoice, ClubSubscription } from '../../../server/models';
-import { createClubFixture, signUp, testApp, type ClubFixture } from '../../support/app';
-import { buyThroughCheckout, linkCustomer, postWebhook, providerEvent, startPaymentHarness, subscriptionObject, type PaymentHarness } from '../../support/payment';
+import { signUp } from '../../support/app';
+import { buyThroughCheckout, linkCustomer, postWebhook, providerEvent, subscriptionObject, usePaymentSuite } from '../../support/payment';
 
-const app = testApp();
-let harness: PaymentHarness;
-let f: ClubFixture;
-
-beforeAll(async () => {
-  harness = await startPaymentHarness(app);
-  f = await createClubFixture(app);
-});
-
-afterAll(async () => {
-  await harness.stop();
-});
+const suite = usePaymentSuite();
+const { app } = suite;
 
 const rowOf = async (clubId: number) => (await ClubSubscription.findOne({ where: { clubId } }))!;
 
@@ -139,35 +129,40 @@ describe('billing webhook: idempotency and order', () => {
 
 describe('billing: purchase through the hosted checkout', () => {
   it('leaves the trial untouched when the card is declined', async () => {
-    const declined = await buyThroughCheckout(f.admin, f.clubId, { plan: 'sideline', interval: 'month', seats: 6 }, FAKE_CARD_DECLINED);
+    const declined = await buyThroughCheckout(suite.fixture.admin, suite.fixture.clubId, { plan: 'sideline', interval: 'month', seats: 6 }, FAKE_CARD_DECLINED);
     expect(declined.status).toBe(402);
     expect(declined.html).toContain('The card was declined');
-    await harness.fake.settled();
-    const res = await f.admin.get(`/api/v1/clubs/${f.clubId}/billing`);
+    await suite.harness.fake.settled();
+    const res = await suite.fixture.admin.get(`/api/v1/clubs/${suite.fixture.clubId}/billing`);
     expect(res.body.data).toMatchObject({ status: 'trialing', plan: null, seats: 10, hasProviderSubscription: false, invoices: [] });
   });
 
   it('keeps the trial when the payment went through but no webhook arrived (the redirect alone changes nothing)', async () => {
     const other = await signUp(app, { clubName: 'Withheld Webhooks Club' });
-    harness.fake.setWebhookUrl(null);
+    suite.harness.fake.setWebhookUrl(null);
     try {
       const paid = await buyThroughCheckout(other.client, other.clubId, { plan: 'sideline', interval: 'month', seats: 4 });
       expect(paid.status).toBe(303);
-      await harness.fake.settled();
+      await suite.harness.fake.settled();
     } finally {
-      harness.fake.setWebhookUrl(harness.webhookUrl);
+      suite.harness.fake.setWebhookUrl(suite.harness.webhookUrl);
     }
     const res = await other.client.get(`/api/v1/clubs/${other.clubId}/billing`);
     expect(res.body.data).toMatchObject({ status: 'trialing', plan: null, hasProviderSubscription: false });
   });
 
   it('becomes active with the bought seats once the provider’s webhooks arrive', async () => {
-    const paid = await buyThroughCheckout(f.admin, f.clubId, { plan: 'grandstand', interval: 'year', seats: 25 });
+    const delivered = suite.harness.fake.deliveries.length;
+    const paid = await buyThroughCheckout(suite.fixture.admin, suite.fixture.clubId, { plan: 'grandstand', interval: 'year', seats: 25 });
     expect(paid.status).toBe(303);
-    expect(paid.location).toMatch(new RegExp(`/billing\\?club=${f.clubId}&checkout=done$`));
-    await harness.fake.settled();
-    expect(harness.fake.deliveries.filter((d) => d.status !== 200)).toEqual([]);
-    const res = await f.admin.get(`/api/v1/clubs/${f.clubId}/billing`);
+    expect(paid.location).toMatch(new RegExp(`/billing\\?club=${suite.fixture.clubId}&checkout=done$`));
+    await suite.harness.fake.settled();
+    expect(suite.harness.fake.deliveries.slice(delivered).map((d) => [d.type, d.status])).toEqual([
+      ['customer.subscription.created', 200],
+      ['invoice.paid', 200],
+      ['checkout.session.completed', 200],
+    ]);
+    const res = await suite.fixture.admin.get(`/api/v1/clubs/${suite.fixture.clubId}/billing`);
     expect(res.status).toBe(200);
     expect(res.body.data).toMatchObject({
       plan: 'grandstand',
@@ -186,7 +181,7 @@ describe('billing: purchase through the hosted checkout', () => {
   });
 
   it('refuses a second checkout while the subscription runs', async () => {
-    const res = await f.admin.post(`/api/v1/clubs/${f.clubId}/billing/checkout`, { plan: 'sideline', interval: 'month', seats: 5 });
+    const res = await suite.fixture.admin.post(`/api/v1/clubs/${suite.fixture.clubId}/billing/checkout`, { plan: 'sideline', interval: 'month', seats: 5 });
     expect(res.status).toBe(409);
     expect(res.body.error.message).toMatch(/already has a subscription/);
   });
