@@ -103,6 +103,21 @@ export interface PaymentFake {
   deliveries: Delivery[];
   setWebhookUrl(url: string | null): void;
   setPublicUrl(url: string): void;
+  /** Puts a customer paying with the good card and their running subscription in place (no webhooks). */
+  seedSubscription(input: SeedSubscription): void;
+}
+
+export interface SeedSubscription {
+  customerId: string;
+  subscriptionId: string;
+  name: string;
+  lookupKey: string;
+  unitAmount: number;
+  interval: 'month' | 'year';
+  quantity: number;
+  /** Period bounds in seconds. */
+  periodStart: number;
+  periodEnd: number;
 }
 
 const now = () => Math.floor(Date.now() / 1000);
@@ -576,6 +591,44 @@ ${message ? `<p role="status">${escapeHtml(message)}</p>` : ''}${error ? `<p cla
     },
     setPublicUrl: (url) => {
       publicUrl = url;
+    },
+    seedSubscription: (input) => {
+      if (subscriptions.has(input.subscriptionId)) return;
+      customers.set(input.customerId, { id: input.customerId, object: 'customer', email: null, name: input.name, metadata: {}, balance: 0, created: input.periodStart });
+      cards.set(input.customerId, digits(FAKE_CARD_PAYS));
+      let price = [...prices.values()].find((p) => p.lookup_key === input.lookupKey);
+      if (!price) {
+        const product = { id: newId('prod'), object: 'product', name: `Arcwright ${input.lookupKey}`, active: true, metadata: {}, created: input.periodStart };
+        products.set(product.id, product);
+        price = {
+          id: newId('price'),
+          object: 'price',
+          active: true,
+          product: product.id,
+          currency: CURRENCY,
+          unit_amount: input.unitAmount,
+          lookup_key: input.lookupKey,
+          type: 'recurring',
+          recurring: { interval: input.interval },
+          metadata: {},
+        } as FakeItem['price'];
+        prices.set(price.id, price);
+      }
+      const item: FakeItem = { id: newId('si'), object: 'subscription_item', price, quantity: input.quantity, current_period_start: input.periodStart, current_period_end: input.periodEnd };
+      subscriptions.set(input.subscriptionId, {
+        id: input.subscriptionId,
+        object: 'subscription',
+        customer: input.customerId,
+        status: 'active',
+        items: { object: 'list', data: [item] },
+        current_period_start: input.periodStart,
+        current_period_end: input.periodEnd,
+        cancel_at_period_end: false,
+        canceled_at: null,
+        metadata: {},
+        latest_invoice: null,
+        created: input.periodStart,
+      });
     },
   };
 }

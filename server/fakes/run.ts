@@ -5,6 +5,7 @@
 import type { Server } from 'node:http';
 import { config } from '../config';
 import { log } from '../logger';
+import { demoFakeSubscription } from '../seeders/demo/billing';
 import { startOAuthFake } from './oauth';
 import { startPaymentFake } from './payment';
 
@@ -29,6 +30,8 @@ async function main(): Promise<void> {
     config.fakes.paymentPort,
   );
   servers.push(payment.server);
+  // The demo club's subscription (server/seeders/0210-demo-billing.ts) lives at the provider too.
+  payment.fake.seedSubscription(demoFakeSubscription());
   log.info(`Payment provider fake on http://127.0.0.1:${payment.port} (webhooks to ${config.payment.webhookUrl})`);
 
   // SMTP sink: started here when e-mail arrives.
