@@ -32,6 +32,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   // -- end planner (planner helper) --
   { label: 'Squad', icon: 'pi pi-users', routeName: 'squad', roles: STAFF },
   { label: 'Club', icon: 'pi pi-building', routeName: 'club', roles: ADMIN },
+  { label: 'Seats & billing', icon: 'pi pi-credit-card', routeName: 'billing', roles: ADMIN },
 ];
 
 /** The entries a role sees, in rail order. */

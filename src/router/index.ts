@@ -51,6 +51,12 @@ const routes: RouteRecordRaw[] = [
         component: () => import('@/views/ClubView.vue'),
         meta: { title: 'Club', roles: ADMIN },
       },
+      {
+        path: 'billing',
+        name: 'billing',
+        component: () => import('@/views/BillingView.vue'),
+        meta: { title: 'Seats & billing', roles: ADMIN },
+      },
       // -- sessions, clips, trace routes (tracing helper) --
       {
         path: 'sessions',
@@ -166,6 +172,10 @@ router.beforeEach(async (to): Promise<boolean | RouteLocationRaw> => {
   if (!auth.isSignedIn) {
     return to.fullPath === '/' ? { name: 'signin' } : { name: 'signin', query: { redirect: to.fullPath } };
   }
+
+  // A link that names a club (the payment provider's return links do) opens it in that club, if the user is a member.
+  const linkedClub = Number(to.query.club);
+  if (Number.isInteger(linkedClub) && linkedClub > 0) useClubStore().switchClub(linkedClub);
 
   const roles = to.meta.roles;
   if (roles && !useClubStore().hasRole(roles)) return { name: 'overview' };
