@@ -1,18 +1,7 @@
 import { statSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import {
-  collectPageErrors,
-  DEMO_CLUB,
-  DEMO_USERS,
-  launchBrowser,
-  newContext,
-  railEntries,
-  screenshot,
-  SCREENSHOT_DIR,
-  signIn,
-  signOut,
-} from './support/browser';
+import type { Browser, Page } from 'playwright-core';
+import { DEMO_CLUB, DEMO_USERS, launchBrowser, railEntries, screenshot, signIn, signOut, withPage as withBrowserPage } from './support/browser';
 
 /** The rail entries of the shell itself; entries added by later features may sit between them. */
 const SHELL_ENTRIES = ['overview', 'squad', 'club'];
@@ -28,20 +17,7 @@ describe('sign-in and the app shell', () => {
     await browser?.close();
   });
 
-  async function withPage(run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
-    const context: BrowserContext = await newContext(browser);
-    const page = await context.newPage();
-    const errors = collectPageErrors(page);
-    try {
-      await run(page, errors);
-    } catch (error) {
-      // The page as it was when the test failed, to read beside the error.
-      await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
-      throw error;
-    } finally {
-      await context.close();
-    }
-  }
+  const withPage = (run: (page: Page, errors: string[]) => Promise<void>) => withBrowserPage(browser, run);
 
   it('signs up, shows the shell, signs out and signs in again when a new coach creates a club', async () => {
     await withPage(async (page, errors) => {

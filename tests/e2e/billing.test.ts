@@ -4,8 +4,8 @@
  * one) and the seats become active once the provider's webhooks arrive; the demo club shows its invoices.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, SCREENSHOT_DIR, signIn } from './support/browser';
+import type { Browser, Page } from 'playwright-core';
+import { DEMO_USERS, launchBrowser, screenshot, signIn, withPage as withBrowserPage } from './support/browser';
 
 // The fake's test cards (server/fakes/payment.ts); this project cannot import server code.
 const CARD_PAYS = '4782 1000 0000 0008';
@@ -22,19 +22,7 @@ describe('Seats & billing', () => {
     await browser?.close();
   });
 
-  async function withPage(run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
-    const context: BrowserContext = await newContext(browser);
-    const page = await context.newPage();
-    const errors = collectPageErrors(page);
-    try {
-      await run(page, errors);
-    } catch (error) {
-      await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
-      throw error;
-    } finally {
-      await context.close();
-    }
-  }
+  const withPage = (run: (page: Page, errors: string[]) => Promise<void>) => withBrowserPage(browser, run);
 
   async function pickPlanAndPay(page: Page, card: string): Promise<void> {
     await page.getByTestId('plan-sideline').click();

@@ -5,7 +5,7 @@
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
-import { inject } from 'vitest';
+import { expect, inject } from 'vitest';
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -84,6 +84,24 @@ export function collectPageErrors(page: Page): string[] {
   const errors: string[] = [];
   page.on('pageerror', (error) => errors.push(error.message));
   return errors;
+}
+
+/**
+ * Runs `run` on a page of a fresh context, with the page errors collected; a failure keeps a screenshot of the
+ * page as it was (`failed-<test name>.png`) to read beside the error.
+ */
+export async function withPage(browser: Browser, run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
+  const context = await newContext(browser);
+  const page = await context.newPage();
+  const errors = collectPageErrors(page);
+  try {
+    await run(page, errors);
+  } catch (error) {
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
+    throw error;
+  } finally {
+    await context.close();
+  }
 }
 
 /**
