@@ -37,6 +37,14 @@ function flag(name: string, fallback: boolean): boolean {
   return !['0', 'false', 'no', 'off'].includes(raw.toLowerCase());
 }
 
+function protocol(name: string, fallback: 'http' | 'https'): 'http' | 'https' {
+  const value = str(name, fallback);
+  if (value !== 'http' && value !== 'https') {
+    throw new Error(`Environment variable ${name} must be http or https (got "${value}"). Fix it in .env or the environment.`);
+  }
+  return value;
+}
+
 const nodeEnv = str('NODE_ENV', 'development');
 // Vitest sets VITEST=true in its workers; either signal puts the server in test mode.
 const isTest = nodeEnv === 'test' || env.VITEST === 'true';
@@ -102,7 +110,7 @@ export const config = {
   payment: {
     apiHost: str('PAYMENT_API_HOST', '127.0.0.1'),
     apiPort: int('PAYMENT_API_PORT', paymentFakePort),
-    apiProtocol: str('PAYMENT_API_PROTOCOL', 'http') as 'http' | 'https',
+    apiProtocol: protocol('PAYMENT_API_PROTOCOL', 'http'),
     secretKey: str('PAYMENT_SECRET_KEY', 'sk_test_arcwright_local'),
     /** Signs the provider's webhooks; the fake signs with the same value. */
     webhookSecret: str('PAYMENT_WEBHOOK_SECRET', 'whsec_arcwright_local_development_secret'),
