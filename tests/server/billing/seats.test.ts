@@ -32,6 +32,8 @@ const billingPath = () => `/api/v1/clubs/${club.clubId}/billing`;
 describe('trial on sign-up', () => {
   it('starts a new club on a free trial of the configured days and athlete seats', async () => {
     const fresh = await signUp(app, { clubName: 'Fresh Trial Club' });
+    // Created with the club in the sign-up transaction, not on the first look at it.
+    expect(await ClubSubscription.findOne({ where: { clubId: fresh.clubId } })).toMatchObject({ status: 'trialing', athleteSeats: config.billing.trialAthleteSeats });
     const res = await fresh.client.get(`/api/v1/clubs/${fresh.clubId}/billing`);
     expect(res.status).toBe(200);
     expect(res.body.data).toMatchObject({ status: 'trialing', plan: null, seats: config.billing.trialAthleteSeats, seatsUsed: 0, recordingAllowed: true, invoices: [], nextInvoice: null });
