@@ -106,34 +106,28 @@ export async function getBilling(clubId: number): Promise<ClubBilling> {
   };
 }
 
-/** Price ids by lookup key, found at the provider or created there once per process. */
-const priceIds = new Map<string, string>();
-
+/**
+ * The provider's price of a plan and interval, found by lookup key or created there (with its product) the
+ * first time. Looked up on every checkout: a cached id would outlive a provider (or fake) that was reset.
+ */
 async function priceIdFor(plan: Plan, interval: BillingInterval): Promise<string> {
   const lookupKey = priceLookupKey(plan.key, interval);
-  const known = priceIds.get(`${config.payment.apiHost}:${config.payment.apiPort}|${lookupKey}`);
-  if (known) return known;
   const stripe = paymentClient();
   const found = await provider('look up the plan’s price', () => stripe.prices.list({ lookup_keys: [lookupKey], active: true, limit: 1 }));
-  let id = found.data[0]?.id;
-  if (!id) {
-    const product = await provider('set up the plan', () =>
-      stripe.products.create({ name: `Arcwright ${plan.name} (athlete seat)`, metadata: { plan: plan.key } }),
-    );
-    const price = await provider('set up the plan’s price', () =>
-      stripe.prices.create({
-        product: product.id,
-        currency: CURRENCY,
-        unit_amount: plan.priceCents[interval],
-        recurring: { interval },
-        lookup_key: lookupKey,
-        metadata: { plan: plan.key, interval },
-      }),
-    );
-    id = price.id;
-  }
-  priceIds.set(`${config.payment.apiHost}:${config.payment.apiPort}|${lookupKey}`, id);
-  return id;
+  const existing = found.data[0]?.id;
+  if (existing) return existing;
+  const product = await provider('set up the plan', () => stripe.products.create({ name: `Arcwright ${plan.name} (athlete seat)`, metadata: { plan: plan.key } }));
+  const price = await provider('set up the plan’s price', () =>
+    stripe.prices.create({
+      product: product.id,
+      currency: CURRENCY,
+      unit_amount: plan.priceCents[interval],
+      recurring: { interval },
+      lookup_key: lookupKey,
+      metadata: { plan: plan.key, interval },
+    }),
+  );
+  return price.id;
 }
 
 export interface CheckoutContext {
