@@ -27,6 +27,7 @@ if [ "$FAKES" != "0" ]; then
   start_ts server/fakes/run.ts
   wait_for_http "http://127.0.0.1:$OAUTH_FAKE_PORT/health" 30 "${PIDS[-1]}" || die "The OAuth fake did not start (port $OAUTH_FAKE_PORT)."
   wait_for_http "http://127.0.0.1:$MAILBOX_FAKE_PORT/health" 30 "${PIDS[-1]}" || die "The SMTP sink did not start (its listing on port $MAILBOX_FAKE_PORT)."
+  wait_for_http "http://127.0.0.1:$PAYMENT_FAKE_PORT/health" 30 "${PIDS[-1]}" || die "The payment fake did not start (port $PAYMENT_FAKE_PORT)."
 fi
 
 NODE_ENV="${NODE_ENV:-production}" start_ts server/index.ts
@@ -43,6 +44,7 @@ cat <<MSG
     athlete@fennickvale.example   Isla Brackwater, athlete
 $( [ "$FAKES" != "0" ] && echo "  \"Continue with Google\" uses the local stand-in on http://127.0.0.1:$OAUTH_FAKE_PORT" )
 $( [ "$FAKES" != "0" ] && echo "  E-mails the app sends (invitations, password reset): http://$HOST:$PORT/dev/mailbox" )
+$( [ "$FAKES" != "0" ] && echo "  Payments go to the local stand-in on http://127.0.0.1:$PAYMENT_FAKE_PORT (card 4782 1000 0000 0008 pays)" )
 
   Stop with Ctrl+C. The database keeps running; stop it with: npm run db:stop
 

@@ -18,6 +18,7 @@ import { sessionMiddleware } from './http/session';
 import './http/types';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
+import { billingRouter, billingWebhookRouter } from './routes/billing';
 import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
 import { devMailboxRouter } from './routes/dev-mailbox';
@@ -86,6 +87,9 @@ export function createApp(options: AppOptions = {}): Express {
   app.use(requestId);
   app.use(securityHeaders());
 
+  // The payment webhook reads its raw body (the signature covers the exact bytes): before express.json().
+  app.use('/api/v1', billingWebhookRouter);
+
   const api = Router();
   // Health answers before the session so that probes create no session rows.
   api.use(healthRouter);
@@ -105,6 +109,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
+  api.use(billingRouter);
   api.use(invitationsRouter);
   api.use(invitationLinksRouter);
   api.use(sessionsRouter);

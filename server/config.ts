@@ -37,6 +37,14 @@ function flag(name: string, fallback: boolean): boolean {
   return !['0', 'false', 'no', 'off'].includes(raw.toLowerCase());
 }
 
+function protocol(name: string, fallback: 'http' | 'https'): 'http' | 'https' {
+  const value = str(name, fallback);
+  if (value !== 'http' && value !== 'https') {
+    throw new Error(`Environment variable ${name} must be http or https (got "${value}"). Fix it in .env or the environment.`);
+  }
+  return value;
+}
+
 const nodeEnv = str('NODE_ENV', 'development');
 // Vitest sets VITEST=true in its workers; either signal puts the server in test mode.
 const isTest = nodeEnv === 'test' || env.VITEST === 'true';
@@ -46,6 +54,7 @@ const oauthFakePort = int('OAUTH_FAKE_PORT', 4781);
 const oauthFakeBase = `http://127.0.0.1:${oauthFakePort}`;
 const smtpFakePort = int('SMTP_FAKE_PORT', 4783);
 const publicUrl = str('PUBLIC_URL', '');
+const paymentFakePort = int('PAYMENT_FAKE_PORT', 4782);
 const dataDir = resolve(process.cwd(), str('DATA_DIR', '.data'));
 
 /** The development session secret; fine on loopback, replaced through SESSION_SECRET anywhere else. */
@@ -100,6 +109,8 @@ export const config = {
     smtpPort: smtpFakePort,
     /** HTTP port where the sink lists what it received; the app's /dev/mailbox reads it. */
     mailboxPort: int('MAILBOX_FAKE_PORT', 4784),
+    /** Port of the payment-provider fake (server/fakes/payment.ts). */
+    paymentPort: paymentFakePort,
   },
   /** Outgoing e-mail (invitations, password reset) over SMTP; the defaults reach the local sink. */
   mail: {
@@ -112,6 +123,27 @@ export const config = {
     from: str('MAIL_FROM', 'Arcwright <no-reply@arcwright.example>'),
     /** Where links in e-mails point: the address people open the app at. */
     appUrl: str('APP_URL', publicUrl || `http://${host}:${port}`).replace(/\/+$/, ''),
+  },
+  /**
+   * The payment provider, reached through its SDK. The defaults point at the local fake
+   * (server/fakes/payment.ts); production sets the provider's host, port 443, https and real keys.
+   */
+  payment: {
+    apiHost: str('PAYMENT_API_HOST', '127.0.0.1'),
+    apiPort: int('PAYMENT_API_PORT', paymentFakePort),
+    apiProtocol: protocol('PAYMENT_API_PROTOCOL', 'http'),
+    secretKey: str('PAYMENT_SECRET_KEY', 'sk_test_arcwright_local'),
+    /** Signs the provider's webhooks; the fake signs with the same value. */
+    webhookSecret: str('PAYMENT_WEBHOOK_SECRET', 'whsec_arcwright_local_development_secret'),
+    /** Where the fake delivers its webhooks (the app's webhook endpoint). */
+    webhookUrl: str('PAYMENT_WEBHOOK_URL', `http://${host}:${port}/api/v1/billing/webhook`),
+    /** Oldest webhook signature accepted, in seconds (the SDK's default is 300). */
+    webhookToleranceSeconds: int('PAYMENT_WEBHOOK_TOLERANCE_SECONDS', 300),
+  },
+  billing: {
+    /** A new club's free trial: its length and athlete seats. */
+    trialDays: int('TRIAL_DAYS', 14),
+    trialAthleteSeats: int('TRIAL_ATHLETE_SEATS', 10),
   },
   google: {
     enabled: flag('GOOGLE_SIGNIN', true),

@@ -42,6 +42,7 @@ set_defaults() {
   export DB_PRIVATE="${DB_PRIVATE:-1}"
   export OAUTH_FAKE_PORT="${OAUTH_FAKE_PORT:-4781}"
   export MAILBOX_FAKE_PORT="${MAILBOX_FAKE_PORT:-4784}"
+  export PAYMENT_FAKE_PORT="${PAYMENT_FAKE_PORT:-4782}"
   export FAKES="${FAKES:-1}"
 }
 

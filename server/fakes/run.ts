@@ -1,12 +1,14 @@
 /**
  * `npm run fakes`: starts every local stand-in for a hosted service, each on its own loopback port.
- * The OAuth 2.0 provider (Google stand-in) and the SMTP sink with its mailbox listing; each further fake is
- * one `start...()` call here.
+ * The OAuth 2.0 provider (Google stand-in), the payment provider and the SMTP sink with its mailbox listing;
+ * each local stand-in is one `start...()` call here.
  */
 import type { Server } from 'node:http';
 import { config } from '../config';
 import { log } from '../logger';
+import { demoFakeSubscription } from '../seeders/demo/billing';
 import { startOAuthFake } from './oauth';
+import { startPaymentFake } from './payment';
 import { startMailSink } from './smtp';
 
 async function main(): Promise<void> {
@@ -25,6 +27,15 @@ async function main(): Promise<void> {
     ),
   );
   log.info(`OAuth fake (Google stand-in) on http://127.0.0.1:${config.fakes.oauthPort}`);
+
+  const payment = await startPaymentFake(
+    { secretKey: config.payment.secretKey, webhookSecret: config.payment.webhookSecret, webhookUrl: config.payment.webhookUrl },
+    config.fakes.paymentPort,
+  );
+  servers.push(payment.server);
+  // The demo club's subscription (server/seeders/0210-demo-billing.ts) lives at the provider too.
+  payment.fake.seedSubscription(demoFakeSubscription());
+  log.info(`Payment provider fake on http://127.0.0.1:${payment.port} (webhooks to ${config.payment.webhookUrl})`);
 
   const sink = await startMailSink({ smtpPort: config.fakes.smtpPort, httpPort: config.fakes.mailboxPort });
   closers.push(sink.close);

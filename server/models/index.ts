@@ -4,9 +4,12 @@
  */
 import { sequelize } from '../db';
 import { AthleteProfile, initAthleteProfile } from './athlete-profile';
+import { BillingEvent, initBillingEvent } from './billing-event';
+import { BillingInvoice, initBillingInvoice } from './billing-invoice';
 import { Calibration, initCalibration } from './calibration';
 import { Clip, initClip } from './clip';
 import { Club, initClub } from './club';
+import { ClubSubscription, initClubSubscription } from './club-subscription';
 import { Fit, initFit } from './fit';
 import { Flight, initFlight } from './flight';
 import { FlightAction, initFlightAction } from './flight-action';
@@ -32,6 +35,9 @@ initFit(sequelize);
 initJob(sequelize);
 initInvitation(sequelize);
 initPasswordReset(sequelize);
+initClubSubscription(sequelize);
+initBillingEvent(sequelize);
+initBillingInvoice(sequelize);
 
 // Foreign keys are `<model>_id` columns; deleting a club removes its memberships and profiles (see migrations).
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
@@ -71,12 +77,21 @@ Invitation.belongsTo(AthleteProfile, { foreignKey: 'athleteProfileId', as: 'athl
 User.hasMany(PasswordReset, { foreignKey: 'userId', as: 'passwordResets' });
 PasswordReset.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 
+// Deleting a club removes its subscription row and invoices (ON DELETE CASCADE in the migrations).
+Club.hasOne(ClubSubscription, { foreignKey: 'clubId', as: 'subscription' });
+ClubSubscription.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+Club.hasMany(BillingInvoice, { foreignKey: 'clubId', as: 'invoices' });
+BillingInvoice.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
+
 export {
   sequelize,
   AthleteProfile,
+  BillingEvent,
+  BillingInvoice,
   Calibration,
   Clip,
   Club,
+  ClubSubscription,
   Fit,
   Flight,
   FlightAction,

@@ -11,6 +11,7 @@ import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
 import { deleteCalibration, getCalibration, setCalibration } from '../services/calibration';
 import { acceptUpload, deleteClip, frameImage, getClip, listClips, listSessionClips, patchClip, stripImage, tooLarge, type UploadedFile } from '../services/clips';
+import { assertClubCanRecord } from '../services/subscriptions';
 import { findVisibleSession } from '../services/visibility';
 import { storage } from '../storage';
 
@@ -77,8 +78,9 @@ clipsRouter.get('/clubs/:clubId/sessions/:sessionId/clips', clubAccess(...ANY_RO
 clipsRouter.post('/clubs/:clubId/sessions/:sessionId/clips', clubAccess('admin', 'coach'), async (req, res) => {
   const club = clubOf(req);
   const sessionId = parseId(req.params.sessionId, 'session');
-  // 404 before reading a byte of the upload.
+  // 404, or a lapsed subscription, before reading a byte of the upload.
   await findVisibleSession(club, sessionId);
+  await assertClubCanRecord(club.id);
   const maxBytes = config.uploads.maxBytes;
   const { workDir, files } = await receive(req, res, maxBytes);
   const parsed = clipUploadFieldsSchema.safeParse(req.body ?? {});

@@ -5,6 +5,7 @@ import { parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
 import { createSession, deleteSession, getSession, listSessions, updateSession } from '../services/sessions';
+import { assertClubCanRecord } from '../services/subscriptions';
 
 /** Sessions: admins and coaches manage them; an athlete reads only sessions holding their own flights. */
 export const sessionsRouter = Router();
@@ -17,6 +18,7 @@ sessionsRouter.get('/clubs/:clubId/sessions', clubAccess(...ANY_ROLE), async (re
 });
 
 sessionsRouter.post('/clubs/:clubId/sessions', clubAccess('admin', 'coach'), validate(sessionInputSchema), async (req, res) => {
+  await assertClubCanRecord(clubOf(req).id);
   res.status(201).json({ data: await createSession(clubOf(req), req.body) });
 });
 

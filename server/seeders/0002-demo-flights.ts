@@ -35,7 +35,7 @@ const STALE_WORK_MS = 10 * 60 * 1000;
 const RENDER_CONCURRENCY = 2;
 
 /** The demo club as 0001-demo-club made it (found through its admin, not by a name anyone could give a club). */
-async function demoClub(transaction: Transaction): Promise<Club | null> {
+export async function demoClub(transaction: Transaction): Promise<Club | null> {
   const admin = await User.findOne({ where: { email: DEMO_USERS[0]!.email }, transaction });
   if (!admin) return null;
   const membership = await Membership.findOne({

@@ -7,6 +7,7 @@ import { decoyHash, hashPassword, verifyPassword } from '../auth/passwords';
 import { withTransaction } from '../db';
 import { ApiError } from '../http/errors';
 import { AthleteProfile, Club, Membership, User } from '../models';
+import { startTrial } from './subscriptions';
 
 export type SessionUser = Express.User;
 
@@ -14,7 +15,7 @@ export function toSessionUser(user: User): SessionUser {
   return { id: user.id, email: user.email, displayName: user.displayName };
 }
 
-/** Creates the user, their club and their admin membership in one transaction. */
+/** Creates the user, their club (on its free trial) and their admin membership in one transaction. */
 export async function signUp(body: SignUpBody): Promise<SessionUser> {
   const existing = await User.findOne({ where: { email: body.email }, attributes: ['id'] });
   if (existing) {
@@ -30,6 +31,7 @@ export async function signUp(body: SignUpBody): Promise<SessionUser> {
       { transaction },
     );
     await Membership.create({ userId: user.id, clubId: club.id, role: 'admin' }, { transaction });
+    await startTrial(club.id, transaction);
     return toSessionUser(user);
   }).catch((err: unknown) => {
     // Two sign-ups with one address at the same moment: the unique index decides, the loser hears why.
@@ -91,6 +93,7 @@ export async function findOrCreateGoogleUser(identity: GoogleIdentity): Promise<
         { transaction },
       );
       await Membership.create({ userId: user.id, clubId: club.id, role: 'admin' }, { transaction });
+      await startTrial(club.id, transaction);
     }
     return toSessionUser(user);
   });

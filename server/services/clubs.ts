@@ -14,6 +14,7 @@ import { countFlights } from './flights';
 import { countPendingAthleteInvitations } from './invitations';
 import { assertAthleteSeatFree } from './seats';
 import { countSessions } from './sessions';
+import { getSubscriptionSummary } from './subscriptions';
 
 export function toClubProfile(club: Club): ClubProfile {
   return {
@@ -31,8 +32,10 @@ async function findClub(clubId: number): Promise<Club> {
   return club;
 }
 
+/** The club profile with the subscription summary every member needs for the banner. */
 export async function getClub(clubId: number): Promise<ClubProfile> {
-  return toClubProfile(await findClub(clubId));
+  const profile = toClubProfile(await findClub(clubId));
+  return { ...profile, subscription: await getSubscriptionSummary(clubId) };
 }
 
 export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<ClubProfile> {

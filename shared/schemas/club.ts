@@ -3,6 +3,7 @@
  */
 import { z } from 'zod';
 import { ROLES } from '../types/api';
+import type { SubscriptionSummary } from './billing';
 
 /** Sport focus of a club; the label is what the client shows. */
 export const SPORT_FOCUSES = [
@@ -122,6 +123,8 @@ export interface ClubProfile {
   units: Units;
   /** Conditions used when a session gives none (SI units); null until the club sets them. */
   defaultConditions: Record<string, number> | null;
+  /** The subscription state every member sees (banner, recording allowed); sent by `GET /clubs/:clubId`. */
+  subscription?: SubscriptionSummary;
 }
 
 export interface MemberSummary {

@@ -24,6 +24,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Planner', icon: 'pi pi-sliders-h', routeName: 'planner', roles: EVERYONE },
   { label: 'Squad', icon: 'pi pi-users', routeName: 'squad', roles: STAFF },
   { label: 'Club', icon: 'pi pi-building', routeName: 'club', roles: ADMIN },
+  { label: 'Seats & billing', icon: 'pi pi-credit-card', routeName: 'billing', roles: ADMIN },
 ];
 
 /** The entries a role sees, in rail order. */

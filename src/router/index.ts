@@ -66,6 +66,12 @@ const routes: RouteRecordRaw[] = [
         meta: { title: 'Club', roles: ADMIN },
       },
       {
+        path: 'billing',
+        name: 'billing',
+        component: () => import('@/views/BillingView.vue'),
+        meta: { title: 'Seats & billing', roles: ADMIN },
+      },
+      {
         path: 'sessions',
         name: 'sessions',
         component: () => import('@/views/SessionsView.vue'),
@@ -172,6 +178,10 @@ router.beforeEach(async (to): Promise<boolean | RouteLocationRaw> => {
   if (!auth.isSignedIn) {
     return to.fullPath === '/' ? { name: 'signin' } : { name: 'signin', query: { redirect: to.fullPath } };
   }
+
+  // A link that names a club (the payment provider's return links do) opens it in that club, if the user is a member.
+  const linkedClub = Number(to.query.club);
+  if (Number.isInteger(linkedClub) && linkedClub > 0) useClubStore().switchClub(linkedClub);
 
   const roles = to.meta.roles;
   if (roles && !useClubStore().hasRole(roles)) return { name: 'overview' };

@@ -1,8 +1,9 @@
 /**
  * Global setup of the browser tests (vitest.e2e.config.ts): a fresh database `arcwright_e2e` (E2E_DB_NAME)
- * migrated and seeded with the demo club, then the fakes (OAuth stand-in, SMTP sink) and the app (serving the
- * built client from dist/) started as child processes on free ports (E2E_PORT default 4790, E2E_OAUTH_PORT
- * default 4791, E2E_SMTP_PORT default 4794, E2E_MAILBOX_PORT default 4795).
+ * migrated and seeded with the demo club, then the fakes (OAuth stand-in, payment provider, SMTP sink) and the
+ * app (serving the built client from dist/) started as child processes on free ports (E2E_PORT default 4790,
+ * E2E_OAUTH_PORT default 4791, E2E_PAYMENT_PORT default 4792, E2E_SMTP_PORT default 4794, E2E_MAILBOX_PORT
+ * default 4795; the payment fake's webhooks go to the app).
  * The app's URL is provided to tests as `inject('baseUrl')`, set as E2E_BASE_URL and written to
  * test-results/e2e-base-url.txt. Server output goes to test-results/e2e-server.log. Teardown stops both.
  */
@@ -118,8 +119,10 @@ export default async function setup(project: TestProject): Promise<() => Promise
   const oauthPort = await freePort(Number(process.env.E2E_OAUTH_PORT ?? 4791));
   const smtpPort = await freePort(Number(process.env.E2E_SMTP_PORT ?? 4794));
   const mailboxPort = await freePort(Number(process.env.E2E_MAILBOX_PORT ?? 4795));
+  const paymentPort = await freePort(Number(process.env.E2E_PAYMENT_PORT ?? 4792));
   const baseUrl = `http://${HOST}:${appPort}`;
   const oauthBase = `http://${HOST}:${oauthPort}`;
+  const paymentBase = `http://${HOST}:${paymentPort}`;
 
   // The children are ordinary servers, not Vitest workers: drop Vitest's variables so they use DB_NAME.
   const env: NodeJS.ProcessEnv = Object.fromEntries(Object.entries(process.env).filter(([key]) => !key.startsWith('VITEST')));
@@ -146,6 +149,11 @@ export default async function setup(project: TestProject): Promise<() => Promise
     GOOGLE_TOKEN_URL: `${oauthBase}/token`,
     GOOGLE_USERINFO_URL: `${oauthBase}/userinfo`,
     GOOGLE_CALLBACK_URL: `${baseUrl}/api/v1/auth/google/callback`,
+    PAYMENT_FAKE_PORT: String(paymentPort),
+    PAYMENT_API_HOST: HOST,
+    PAYMENT_API_PORT: String(paymentPort),
+    PAYMENT_API_PROTOCOL: 'http',
+    PAYMENT_WEBHOOK_URL: `${baseUrl}/api/v1/billing/webhook`,
     PUBLIC_URL: '',
     SIGNUP_RATE_LIMIT_MAX: '1000',
     LOG_LEVEL: process.env.E2E_LOG_LEVEL ?? 'warn',
@@ -176,6 +184,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
     const fakes = start('server/fakes/run.ts');
     await waitForHealth(`${oauthBase}/health`, fakes, 30);
     await waitForHealth(`http://${HOST}:${mailboxPort}/health`, fakes, 30);
+    await waitForHealth(`${paymentBase}/health`, fakes, 30);
     const app = start('server/index.ts');
     await waitForHealth(`${baseUrl}/api/v1/health`, app, 60);
   } catch (err) {

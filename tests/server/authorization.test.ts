@@ -3,7 +3,6 @@
  * another club's admin, anonymous} with the expected status. A completeness check makes sure a new
  * route of these routers cannot be added without a row here.
  */
-import type { Router } from 'express';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newToken } from '../../server/auth/tokens';
 import { Invitation } from '../../server/models';
@@ -13,6 +12,7 @@ import { invitationsRouter } from '../../server/routes/invitations';
 import { membersRouter } from '../../server/routes/members';
 import { addMember, createClubFixture, testApp, uniqueEmail, type ApiClient, type ClubFixture } from '../support/app';
 import { useTestMailbox, type TestMailbox } from '../support/mail';
+import { routesOf } from '../support/routes';
 
 type Who = 'admin' | 'coach' | 'athlete' | 'outsider' | 'anonymous';
 type Method = 'get' | 'post' | 'patch' | 'delete';
@@ -122,14 +122,6 @@ const CASES: Case[] = [
     expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
   },
 ];
-
-/** Routes as `method path` from an Express 5 router's own table. */
-function routesOf(router: Router): string[] {
-  const stack = (router as unknown as { stack: { route?: { path: string; methods: Record<string, boolean> } }[] }).stack;
-  return stack
-    .filter((layer) => layer.route)
-    .flatMap((layer) => Object.keys(layer.route!.methods).map((m) => `${m} ${layer.route!.path}`));
-}
 
 describe('authorization matrix', () => {
   let f: ClubFixture;

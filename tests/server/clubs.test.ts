@@ -11,7 +11,14 @@ describe('clubs: profile and overview', () => {
   it('returns the club profile with metric units by default', async () => {
     const res = await f.coach.get(`/api/v1/clubs/${f.clubId}`);
     expect(res.status).toBe(200);
-    expect(res.body.data).toEqual({ id: f.clubId, name: 'Fixture Club', sportFocus: 'multi-sport', units: 'metric', defaultConditions: null });
+    expect(res.body.data).toEqual({
+      id: f.clubId,
+      name: 'Fixture Club',
+      sportFocus: 'multi-sport',
+      units: 'metric',
+      defaultConditions: null,
+      subscription: { status: 'trialing', recordingAllowed: true, reason: null, trialEndsAt: expect.any(String) },
+    });
   });
 
   it('counts members by role and athlete profiles on the Overview', async () => {

@@ -22,6 +22,7 @@ const fakePort = vi.hoisted(() => {
 });
 
 import { startOAuthFake } from '../../server/fakes/oauth';
+import { ClubSubscription } from '../../server/models';
 import { ApiClient, Membership, TEST_PASSWORD, signUp, testApp, uniqueEmail } from '../support/app';
 
 const app = testApp();
@@ -66,6 +67,16 @@ describe('Google sign-in through the OAuth fake', () => {
     expect(me.body.data.memberships).toEqual([
       { clubId: expect.any(Number), clubName: "Rook Ellery's club", role: 'admin', athleteProfileId: null },
     ]);
+  });
+
+  it('starts the personal club of a new Google account on its free trial', async () => {
+    const { client } = await googleSignIn(uniqueEmail('google'), 'Wynn Tarrow');
+    const me = await client.get('/api/v1/auth/me');
+    const clubId = me.body.data.memberships[0].clubId as number;
+    // Created with the club, not on the first look at it.
+    expect(await ClubSubscription.findOne({ where: { clubId } })).toMatchObject({ status: 'trialing', providerSubscriptionId: null });
+    const club = await client.get(`/api/v1/clubs/${clubId}`);
+    expect(club.body.data.subscription).toEqual({ status: 'trialing', recordingAllowed: true, reason: null, trialEndsAt: expect.any(String) });
   });
 
   it('finds the same user and creates no second club when they sign in with Google again', async () => {

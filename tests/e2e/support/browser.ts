@@ -87,6 +87,24 @@ export function collectPageErrors(page: Page): string[] {
 }
 
 /**
+ * Runs `run` on a page of a fresh context, with the page errors collected; a failure keeps a screenshot of the
+ * page as it was (`failed-<test name>.png`) to read beside the error.
+ */
+export async function withPage(browser: Browser, run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
+  const context = await newContext(browser);
+  const page = await context.newPage();
+  const errors = collectPageErrors(page);
+  try {
+    await run(page, errors);
+  } catch (error) {
+    await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
+    throw error;
+  } finally {
+    await context.close();
+  }
+}
+
+/**
  * Waits until the page is still: fonts loaded, no network in flight, no skeleton left, and any ECharts
  * animation (about a second) finished.
  */
@@ -134,20 +152,3 @@ export async function railEntries(page: Page): Promise<string[]> {
   return ids.map((id) => id.replace(/^rail-/, ''));
 }
 
-/**
- * Runs `run` on a page of a fresh context, with the page errors it collects; closes the context afterwards.
- * When `run` fails, the page as it was is saved as `failed-<test name>.png` to read beside the error.
- */
-export async function withPage(browser: Browser, run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
-  const context: BrowserContext = await newContext(browser);
-  const page = await context.newPage();
-  const errors = collectPageErrors(page);
-  try {
-    await run(page, errors);
-  } catch (error) {
-    await page.screenshot({ path: `${SCREENSHOT_DIR}/failed-${expect.getState().currentTestName?.replace(/\W+/g, '-').slice(-80)}.png` }).catch(() => undefined);
-    throw error;
-  } finally {
-    await context.close();
-  }
-}

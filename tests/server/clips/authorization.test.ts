@@ -2,13 +2,13 @@ import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Router } from 'express';
 import { Clip, Flight, FlightAction, Job } from '../../../server/models';
 import { clipsRouter } from '../../../server/routes/clips';
 import { flightsRouter } from '../../../server/routes/flights';
 import { jobsRouter } from '../../../server/routes/jobs';
 import { sessionsRouter } from '../../../server/routes/sessions';
 import { createClubFixture, type ApiClient, type ClubFixture } from '../../support/app';
+import { routesOf } from '../../support/routes';
 import { createSession, flightClip, upload, useTestStorage, type TestStorage } from './helpers';
 import { testWorker } from './worker-helper';
 
@@ -151,12 +151,6 @@ async function call(client: ApiClient, route: RouteCase, clubId: number, own: bo
 }
 
 const allowed = (staff: number | number[]) => (Array.isArray(staff) ? staff : [staff]);
-
-/** Routes as `method path` from an Express 5 router's own table. */
-function routesOf(router: Router): string[] {
-  const stack = (router as unknown as { stack: { route?: { path: string; methods: Record<string, boolean> } }[] }).stack;
-  return stack.filter((l) => l.route).flatMap((l) => Object.keys(l.route!.methods).map((m) => `${m} ${l.route!.path}`));
-}
 
 describe('clips API authorization', () => {
   it('covers every route of the sessions, clips, flights and jobs routers', () => {
