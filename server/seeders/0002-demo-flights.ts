@@ -19,9 +19,10 @@ import { calibrationInputSchema } from '../../shared/schemas/calibration';
 import { config } from '../config';
 import { enqueue } from '../jobs/queue';
 import { log } from '../logger';
-import { AthleteProfile, Calibration, Clip, Club, Flight, FlightAction, Membership, Session, TrackPoint, User } from '../models';
+import { AthleteProfile, Calibration, Clip, Club, Flight, FlightAction, Membership, Session, User } from '../models';
 import { calibrationValues } from '../services/calibration';
 import { ensureDefaultActions } from '../services/flights';
+import { insertPoints } from '../services/tracks';
 import { clipKeys, LocalDiskStorage, storage } from '../storage';
 import { DEMO_CLUB_NAME, DEMO_USERS } from './0001-demo-club';
 import { DEMO_CUSTOM_ACTION, DEMO_SESSIONS, type DemoSessionPlan } from './demo/plan';
@@ -167,18 +168,7 @@ async function insertSession(
       },
       { transaction },
     );
-    await TrackPoint.bulkCreate(
-      r.points.map((p) => ({
-        flightId: row.id,
-        frame: p.frame,
-        xPx: p.xPx,
-        yPx: p.yPx,
-        radiusPx: p.radiusPx ?? null,
-        source: p.source ?? 'manual',
-        confidence: p.confidence ?? null,
-      })),
-      { transaction },
-    );
+    await insertPoints(row.id, r.points, transaction);
     await enqueue({ clubId, type: 'clip.process', payload: { clipId: clip.id }, clipId: clip.id }, transaction);
     await enqueue({ clubId, type: 'flight.fit', payload: { flightId: row.id }, clipId: clip.id, flightId: row.id }, transaction);
     seeded.push({ clipId: clip.id, videoPath: r.videoPath, sourceKey: clip.sourceKey });

@@ -56,23 +56,28 @@ function pointProblem(p: TrackPointInput, flight: Flight, clip: Clip): string | 
   return null;
 }
 
+/** Inserts a flight's points (a click without a source is a manual mark). */
+export async function insertPoints(flightId: number, points: TrackPointInput[], transaction: Transaction): Promise<void> {
+  await TrackPoint.bulkCreate(
+    points.map((p) => ({
+      flightId,
+      frame: p.frame,
+      xPx: p.xPx,
+      yPx: p.yPx,
+      radiusPx: p.radiusPx ?? null,
+      source: p.source ?? 'manual',
+      confidence: p.confidence ?? null,
+    })),
+    { transaction },
+  );
+}
+
 /** Replaces a flight's points in one transaction, then sets its status from them (the old fit is stale once points change). */
 async function writePoints(flight: Flight, points: TrackPointInput[], transaction: Transaction, keepBefore?: number): Promise<void> {
   if (keepBefore === undefined) await TrackPoint.destroy({ where: { flightId: flight.id }, transaction });
   else await TrackPoint.destroy({ where: { flightId: flight.id, frame: { [Op.gte]: keepBefore } }, transaction });
   if (points.length > 0) {
-    await TrackPoint.bulkCreate(
-      points.map((p) => ({
-        flightId: flight.id,
-        frame: p.frame,
-        xPx: p.xPx,
-        yPx: p.yPx,
-        radiusPx: p.radiusPx ?? null,
-        source: p.source ?? 'manual',
-        confidence: p.confidence ?? null,
-      })),
-      { transaction },
-    );
+    await insertPoints(flight.id, points, transaction);
   }
   const remaining = await TrackPoint.count({ where: { flightId: flight.id }, transaction });
   flight.status = remaining > 0 ? 'traced' : 'uploaded';
