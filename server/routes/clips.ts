@@ -64,6 +64,27 @@ async function receive(req: Request, res: Response, maxBytes: number): Promise<{
   return { workDir, files };
 }
 
+/** Bodies up to this size are read and dropped before an early refusal, so that the client reads the answer. */
+const DRAIN_LIMIT_BYTES = 16 * 1024 * 1024;
+
+/**
+ * Reads and drops the body of a request refused before its upload was read. Note: answering while the client
+ * is still sending makes some clients fail with EPIPE instead of showing the answer; a larger body is not
+ * worth reading, so its connection closes after the answer instead.
+ */
+async function discardBody(req: Request, res: Response): Promise<void> {
+  const declared = Number(req.headers['content-length']);
+  if (req.readableEnded) return;
+  if (!Number.isFinite(declared) || declared > DRAIN_LIMIT_BYTES) {
+    res.setHeader('Connection', 'close');
+    return;
+  }
+  await new Promise<void>((resolve) => {
+    req.on('end', resolve).on('error', () => resolve()).on('close', resolve);
+    req.resume();
+  });
+}
+
 /**
  * Clips: upload (admins and coaches), list and read (an athlete: clips holding their own flights),
  * frames and thumbnail strip as images, capture-rate correction, calibration.
@@ -78,9 +99,14 @@ clipsRouter.get('/clubs/:clubId/sessions/:sessionId/clips', clubAccess(...ANY_RO
 clipsRouter.post('/clubs/:clubId/sessions/:sessionId/clips', clubAccess('admin', 'coach'), async (req, res) => {
   const club = clubOf(req);
   const sessionId = parseId(req.params.sessionId, 'session');
-  // 404, or a lapsed subscription, before reading a byte of the upload.
-  await findVisibleSession(club, sessionId);
-  await assertClubCanRecord(club.id);
+  // 404, or a lapsed subscription, before storing a byte of the upload.
+  try {
+    await findVisibleSession(club, sessionId);
+    await assertClubCanRecord(club.id);
+  } catch (err) {
+    await discardBody(req, res);
+    throw err;
+  }
   const maxBytes = config.uploads.maxBytes;
   const { workDir, files } = await receive(req, res, maxBytes);
   const parsed = clipUploadFieldsSchema.safeParse(req.body ?? {});
