@@ -19,6 +19,7 @@ import './http/types';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
+import { clipUploadsRouter } from './routes/clip-uploads';
 import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
 import { devMailboxRouter } from './routes/dev-mailbox';
@@ -114,6 +115,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(invitationLinksRouter);
   api.use(sessionsRouter);
   api.use(clipsRouter);
+  api.use(clipUploadsRouter);
   api.use(flightsRouter);
   api.use(jobsRouter);
 

@@ -1,14 +1,18 @@
 /**
  * Background work of the web process: `WORKERS_IN_WEB` job workers (default 1; 0 leaves the jobs to
- * `npm run worker` processes). Started by server/index.ts after the server listens.
+ * `npm run worker` processes) and the sweep of expired resumable uploads. Started by server/index.ts
+ * after the server listens.
  */
 import { JOB_HANDLERS } from './jobs/handlers';
 import { jobSettings } from './jobs/settings';
 import { JobWorker } from './jobs/worker';
+import { log } from './logger';
+import { startUploadSweeper, stopUploadSweeper } from './services/clip-uploads';
 
 let worker: JobWorker | null = null;
 
 export async function startBackgroundWork(): Promise<void> {
+  startUploadSweeper((err) => log.error('expired uploads could not be swept', { stack: err instanceof Error ? err.stack : String(err) }));
   if (worker || jobSettings.workersInWeb === 0) return;
   worker = new JobWorker({ handlers: JOB_HANDLERS, concurrency: jobSettings.workersInWeb, name: 'web' });
   worker.start();
@@ -16,6 +20,7 @@ export async function startBackgroundWork(): Promise<void> {
 
 /** Stops what startBackgroundWork started (called on shutdown): running jobs finish or go back to the queue. */
 export async function stopBackgroundWork(): Promise<void> {
+  stopUploadSweeper();
   const current = worker;
   worker = null;
   await current?.stop();

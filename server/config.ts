@@ -159,6 +159,10 @@ export const config = {
   },
   uploads: {
     maxBytes: int('UPLOAD_MAX_BYTES', 1024 * 1024 * 1024),
+    /** How long after its creation an unfinished resumable upload is kept; then it answers 410 and its bytes are removed. */
+    resumableExpiryMs: int('UPLOAD_RESUME_HOURS', 24) * 3600 * 1000,
+    /** How often the web process removes expired resumable uploads. */
+    resumableSweepMs: int('UPLOAD_SWEEP_MINUTES', 15) * 60 * 1000,
   },
 };
 

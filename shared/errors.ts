@@ -22,6 +22,7 @@ export const ERROR_CODES = {
   CSV_INVALID: 400,
   CALIBRATION_REQUIRED: 409,
   MEDIA_UNREADABLE: 422,
+  UPLOAD_EXPIRED: 410,
   // Members, invitations, password reset and e-mail.
   INVITATION_INVALID: 404,
   INVITATION_EXPIRED: 410,

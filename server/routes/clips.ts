@@ -6,6 +6,7 @@ import { clipListQuerySchema, clipPatchSchema, clipUploadFieldsSchema } from '..
 import { MAX_TRACK_POINTS } from '../../shared/schemas/track';
 import { config } from '../config';
 import { confirmed } from '../http/confirm';
+import { discardBody } from '../http/discard-body';
 import { ApiError, parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
@@ -62,27 +63,6 @@ async function receive(req: Request, res: Response, maxBytes: number): Promise<{
     files[field] = list.map((f) => ({ path: f.path, originalName: Buffer.from(f.originalname, 'latin1').toString('utf8'), sizeBytes: f.size }));
   }
   return { workDir, files };
-}
-
-/** Bodies up to this size are read and dropped before an early refusal, so that the client reads the answer. */
-const DRAIN_LIMIT_BYTES = 16 * 1024 * 1024;
-
-/**
- * Reads and drops the body of a request refused before its upload was read. Note: answering while the client
- * is still sending makes some clients fail with EPIPE instead of showing the answer; a larger body is not
- * worth reading, so its connection closes after the answer instead.
- */
-async function discardBody(req: Request, res: Response): Promise<void> {
-  const declared = Number(req.headers['content-length']);
-  if (req.readableEnded) return;
-  if (!Number.isFinite(declared) || declared > DRAIN_LIMIT_BYTES) {
-    res.setHeader('Connection', 'close');
-    return;
-  }
-  await new Promise<void>((resolve) => {
-    req.on('end', resolve).on('error', () => resolve()).on('close', resolve);
-    req.resume();
-  });
 }
 
 /**

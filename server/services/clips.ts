@@ -142,6 +142,16 @@ export function tooLarge(maxBytes: number): ApiError {
   );
 }
 
+/** Refuses a slow-motion clip or a frame set without the capture rate: nothing else times their frames. */
+export function assertCaptureRateGiven(fields: ClipUploadFields, isFrameSet: boolean): void {
+  if ((fields.slowMotion || isFrameSet) && fields.captureFps === undefined) {
+    const why = isFrameSet ? 'A set of frames has no timing of its own' : 'A slow-motion clip plays back slower than it was filmed';
+    throw new ApiError('VALIDATION_FAILED', `${why}: give the capture frame rate (frames per second the camera recorded).`, {
+      captureFps: 'Give the capture frame rate, e.g. 240 for a 240 fps slow-motion clip.',
+    });
+  }
+}
+
 const natural = new Intl.Collator('en', { numeric: true, sensitivity: 'base' });
 
 /**
@@ -168,12 +178,7 @@ export async function acceptUpload(club: ClubContext, sessionId: number, upload:
     }
     const total = [...video, ...frames].reduce((sum, f) => sum + f.sizeBytes, 0);
     if (total > maxBytes) throw tooLarge(maxBytes);
-    if ((fields.slowMotion || frames.length > 0) && fields.captureFps === undefined) {
-      const why = frames.length > 0 ? 'A set of frames has no timing of its own' : 'A slow-motion clip plays back slower than it was filmed';
-      throw new ApiError('VALIDATION_FAILED', `${why}: give the capture frame rate (frames per second the camera recorded).`, {
-        captureFps: 'Give the capture frame rate, e.g. 240 for a 240 fps slow-motion clip.',
-      });
-    }
+    assertCaptureRateGiven(fields, frames.length > 0);
 
     if (video.length === 1) {
       const file = video[0]!;

@@ -40,6 +40,12 @@ export interface Storage {
   removePrefix(prefix: string): Promise<void>;
   /** A fresh private local folder for uploads and work in progress; the caller removes it. */
   workDir(purpose: string): Promise<string>;
+  /**
+   * The one local folder that holds uploads received in parts (resumable uploads) until they are complete.
+   * It outlives a restart of the process, unlike a work folder, so that a client can resume; on the same
+   * file system as the work folders, so a finished upload moves out by a rename.
+   */
+  partialUploadsDir(): Promise<string>;
 }
 
 /** Refuses keys that could escape the storage root (absolute paths, `..`, backslashes, empty parts). */
@@ -51,7 +57,10 @@ export function checkKey(key: string): string {
   return clean;
 }
 
-/** Local-disk storage under one root folder (`STORAGE_DIR`). Work folders live in `<root>/.work` on the same file system, so moves are renames. */
+/**
+ * Local-disk storage under one root folder (`STORAGE_DIR`). Work folders live in `<root>/.work` and resumable uploads
+ * in progress in `<root>/.partial-uploads`, on the same file system, so moves are renames.
+ */
 export class LocalDiskStorage implements Storage {
   readonly root: string;
 
@@ -157,6 +166,12 @@ export class LocalDiskStorage implements Storage {
     const base = join(this.root, '.work');
     await mkdir(base, { recursive: true });
     return mkdtemp(join(base, `${purpose.replace(/[^a-z0-9-]/gi, '-')}-`));
+  }
+
+  async partialUploadsDir(): Promise<string> {
+    const dir = join(this.root, '.partial-uploads');
+    await mkdir(dir, { recursive: true });
+    return dir;
   }
 }
 

@@ -2,8 +2,8 @@
  * The video engine's public face: probing, frame extraction, auto-follow. See README.md beside this
  * file for what each function does and the errors it throws.
  */
-export { sniffMedia } from './sniff';
-export { probeClip, probeFrameSet } from './probe';
+export { readHead, sniffMedia } from './sniff';
+export { checkVideoHead, probeClip, probeFrameSet } from './probe';
 export { extractFrames, framePath, frameFileName, FRAME_PATTERN, DEFAULT_MAX_SIDE } from './extract';
 export { followBall, FOLLOW_DEFAULTS } from './follow';
 export { VideoError, isVideoError, VIDEO_ERROR_CODES, type VideoErrorCode } from './errors';

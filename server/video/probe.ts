@@ -12,20 +12,19 @@ import ffmpeg from 'fluent-ffmpeg';
 import { VideoError } from './errors';
 import { readHead, sniffBytes } from './sniff';
 import { configureFluentFfmpeg, ffmpegPath, ffprobePath, lastErrorLine, runTool, type RunResult } from './tools';
-import type { ClipProbe, FrameSetProbe, MediaFormat } from './types';
+import type { ClipProbe, FrameSetProbe, MediaFormat, MediaSniff } from './types';
 
 const CONTAINER_NAMES = 'MP4, MOV, MKV/WebM, AVI or MPEG-TS';
 
 /**
- * Probes a video file.
- * @param path a file on local disk.
- * @returns container, codec, displayed and coded size, rotation, playback frame rate, frame count,
- *   duration; see `ClipProbe`.
- * @throws VideoError VIDEO_FILE_UNREADABLE, VIDEO_EMPTY_FILE, VIDEO_NOT_MEDIA, VIDEO_IS_IMAGE,
- *   VIDEO_TRUNCATED, VIDEO_NO_DECODABLE_STREAM, VIDEO_DECODE_FAILED, VIDEO_TOOL_MISSING.
+ * Checks the first bytes of a file that should be a video (magic bytes only, no ffprobe), so that an upload
+ * received in parts can be refused as soon as its start has arrived.
+ * @param head the first bytes of the file (4 KiB are enough; `readHead` reads them).
+ * @param path the file, named in the error's details only.
+ * @returns the sniffed container.
+ * @throws VideoError VIDEO_NOT_MEDIA, VIDEO_IS_IMAGE.
  */
-export async function probeClip(path: string): Promise<ClipProbe> {
-  const head = await readHead(path);
+export function checkVideoHead(head: Buffer, path: string): MediaSniff & { kind: 'video' } {
   const sniff = sniffBytes(head);
   if (!sniff) {
     throw new VideoError(
@@ -42,6 +41,19 @@ export async function probeClip(path: string): Promise<ClipProbe> {
       { path, format: sniff.format },
     );
   }
+  return sniff as MediaSniff & { kind: 'video' };
+}
+
+/**
+ * Probes a video file.
+ * @param path a file on local disk.
+ * @returns container, codec, displayed and coded size, rotation, playback frame rate, frame count,
+ *   duration; see `ClipProbe`.
+ * @throws VideoError VIDEO_FILE_UNREADABLE, VIDEO_EMPTY_FILE, VIDEO_NOT_MEDIA, VIDEO_IS_IMAGE,
+ *   VIDEO_TRUNCATED, VIDEO_NO_DECODABLE_STREAM, VIDEO_DECODE_FAILED, VIDEO_TOOL_MISSING.
+ */
+export async function probeClip(path: string): Promise<ClipProbe> {
+  const sniff = checkVideoHead(await readHead(path), path);
   const sizeBytes = (await stat(path)).size;
   // The three checks are independent; running them together saves a process start or two.
   // Note: a structural fault is reported first, since ffprobe's complaint about the same file is vaguer.
