@@ -8,6 +8,9 @@ import { checkDatabase, sequelize } from './db';
 import { log } from './logger';
 import { migrateUp } from './migrate';
 
+/** How long requests in flight may take to finish after SIGTERM before their connections are closed. */
+const SHUTDOWN_GRACE_MS = 30_000;
+
 async function main(): Promise<void> {
   await checkDatabase();
   await migrateUp();
@@ -31,14 +34,23 @@ async function main(): Promise<void> {
   const stop = (signal: string) => {
     if (stopping) return;
     stopping = true;
-    log.info(`${signal} received, shutting down`);
-    server.close();
-    server.closeAllConnections();
-    stopBackgroundWork()
-      .catch((err: unknown) => log.error('background work did not stop cleanly', { stack: err instanceof Error ? err.stack : String(err) }))
-      .finally(() => {
-        sequelize.close().finally(() => process.exit(0));
-      });
+    log.info(`${signal} received, shutting down after the requests in flight`);
+    // Stop accepting connections; requests in flight (an upload's last part included) finish, up to the grace.
+    const drained = new Promise<void>((resolve) => server.close(() => resolve()));
+    const idle = setInterval(() => server.closeIdleConnections(), 200);
+    const grace = setTimeout(() => {
+      log.warn(`requests still running after ${SHUTDOWN_GRACE_MS / 1000} s: closing their connections`);
+      server.closeAllConnections();
+    }, SHUTDOWN_GRACE_MS);
+    server.closeIdleConnections();
+    Promise.all([
+      drained,
+      stopBackgroundWork().catch((err: unknown) => log.error('background work did not stop cleanly', { stack: err instanceof Error ? err.stack : String(err) })),
+    ]).finally(() => {
+      clearInterval(idle);
+      clearTimeout(grace);
+      sequelize.close().finally(() => process.exit(0));
+    });
   };
   process.on('SIGINT', () => stop('SIGINT'));
   process.on('SIGTERM', () => stop('SIGTERM'));

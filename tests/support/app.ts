@@ -33,7 +33,7 @@ export function uniqueEmail(prefix = 'user'): string {
   return `${prefix}-${Date.now().toString(36)}-${randomBytes(4).toString('hex')}@test.example`;
 }
 
-type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
+type Method = 'get' | 'head' | 'post' | 'put' | 'patch' | 'delete';
 
 /** A signed-in (or anonymous) browser: cookie jar plus CSRF token. */
 export class ApiClient {
@@ -52,9 +52,10 @@ export class ApiClient {
   }
 
   async request(method: Method, path: string, body?: unknown): Promise<Response> {
-    if (method !== 'get' && this.csrfToken === null) await this.refreshCsrf();
+    const safe = method === 'get' || method === 'head';
+    if (!safe && this.csrfToken === null) await this.refreshCsrf();
     let req = this.agent[method](path);
-    if (method !== 'get' && this.csrfToken) req = req.set('X-CSRF-Token', this.csrfToken);
+    if (!safe && this.csrfToken) req = req.set('X-CSRF-Token', this.csrfToken);
     if (body !== undefined) req = req.send(body as object);
     const res = await req;
     if (path.startsWith('/api/v1/auth/sign') && res.status < 300) this.csrfToken = null;

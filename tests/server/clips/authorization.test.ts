@@ -3,6 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Clip, Flight, FlightAction, Job } from '../../../server/models';
+import { clipUploadsRouter } from '../../../server/routes/clip-uploads';
 import { clipsRouter } from '../../../server/routes/clips';
 import { flightsRouter } from '../../../server/routes/flights';
 import { jobsRouter } from '../../../server/routes/jobs';
@@ -77,7 +78,7 @@ afterAll(async () => {
   await rm(dir, { recursive: true, force: true });
 });
 
-type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
+type Method = 'get' | 'head' | 'post' | 'put' | 'patch' | 'delete';
 interface RouteCase {
   name: string;
   /** The Express route pattern, to prove the table covers every route. */
@@ -103,6 +104,10 @@ async function freshFlight(): Promise<string> {
   return `/flights/${f.id}`;
 }
 
+const UPLOAD = '/clubs/:clubId/sessions/:sessionId/clips/uploads/:uploadId';
+/** An id of the right form that names no upload: refusals come before the upload is looked up. */
+const UPLOAD_ID = 'a'.repeat(32);
+
 const routes: RouteCase[] = [
   { name: 'list sessions', route: '/clubs/:clubId/sessions', method: 'get', path: () => '/sessions', staff: 200, write: false },
   { name: 'read a session', route: '/clubs/:clubId/sessions/:sessionId', method: 'get', path: (own) => `/sessions/${own ? ids.session : ids.otherSession}`, staff: 200, write: false },
@@ -111,6 +116,10 @@ const routes: RouteCase[] = [
   { name: 'edit a session', route: '/clubs/:clubId/sessions/:sessionId', method: 'patch', path: () => `/sessions/${ids.session}`, body: () => ({ notes: 'edited' }), staff: 200, write: true },
   { name: 'delete a session with flights (unconfirmed)', route: '/clubs/:clubId/sessions/:sessionId', method: 'delete', path: () => `/sessions/${ids.session}`, staff: 409, write: true },
   { name: 'upload a clip (no file)', route: '/clubs/:clubId/sessions/:sessionId/clips', method: 'post', path: () => `/sessions/${ids.session}/clips`, staff: 400, write: true },
+  { name: 'start a resumable upload (no protocol header)', route: '/clubs/:clubId/sessions/:sessionId/clips/uploads', method: 'post', path: () => `/sessions/${ids.session}/clips/uploads`, staff: 400, write: true },
+  { name: 'ask a resumable upload’s offset (no protocol header)', route: `${UPLOAD}`, method: 'head', path: () => `/sessions/${ids.session}/clips/uploads/${UPLOAD_ID}`, staff: 400, write: true },
+  { name: 'send a part of a resumable upload (no protocol header)', route: `${UPLOAD}`, method: 'patch', path: () => `/sessions/${ids.session}/clips/uploads/${UPLOAD_ID}`, staff: 400, write: true },
+  { name: 'abandon a resumable upload (no protocol header)', route: `${UPLOAD}`, method: 'delete', path: () => `/sessions/${ids.session}/clips/uploads/${UPLOAD_ID}`, staff: 400, write: true },
   { name: 'list clips', route: '/clubs/:clubId/clips', method: 'get', path: () => '/clips', staff: 200, write: false },
   { name: 'read a clip', route: '/clubs/:clubId/clips/:clipId', method: 'get', path: (own) => `/clips/${own ? ids.clip : ids.otherClip}`, staff: 200, write: false },
   { name: 'edit a clip', route: '/clubs/:clubId/clips/:clipId', method: 'patch', path: () => `/clips/${ids.clip}`, body: () => ({ label: 'Edited label' }), staff: 200, write: true },
@@ -146,15 +155,16 @@ async function call(client: ApiClient, route: RouteCase, clubId: number, own: bo
   const path = `/api/v1/clubs/${clubId}${await route.path(own)}`;
   const res = await client.request(route.method, path, route.body?.());
   const codes: Record<number, string> = { 401: 'UNAUTHENTICATED', 403: 'FORBIDDEN', 404: 'NOT_FOUND' };
-  if (codes[res.status]) expect(res.body.error.code).toBe(codes[res.status]);
+  // A HEAD answer has no body to read the code from.
+  if (codes[res.status] && route.method !== 'head') expect(res.body.error.code).toBe(codes[res.status]);
   return res.status;
 }
 
 const allowed = (staff: number | number[]) => (Array.isArray(staff) ? staff : [staff]);
 
 describe('clips API authorization', () => {
-  it('covers every route of the sessions, clips, flights and jobs routers', () => {
-    const declared = [sessionsRouter, clipsRouter, flightsRouter, jobsRouter].flatMap(routesOf).sort();
+  it('covers every route of the sessions, clips, clip uploads, flights and jobs routers', () => {
+    const declared = [sessionsRouter, clipsRouter, clipUploadsRouter, flightsRouter, jobsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(routes.map((r) => `${r.method} ${r.route}`))].sort();
     expect(tested).toEqual(declared);
   });
