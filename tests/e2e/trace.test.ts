@@ -1,11 +1,10 @@
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
-import { pathToFileURL } from 'node:url';
+import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, signIn } from './support/browser';
+import { renderClip, type Truth } from './support/clips';
 
 /**
  * The way from a clip to a traced, calibrated flight in the browser: a coach creates a session, uploads a
@@ -26,27 +25,6 @@ const SCALE_M = 10;
 interface Point {
   x: number;
   y: number;
-}
-
-/** The parts of the generator's truth file (server/video/synth.ts, FlightTruth) this test reads. */
-interface Truth {
-  launchFrame: number;
-  frames: { frame: number; x: number; y: number; visible: boolean }[];
-}
-
-/**
- * Renders the test clip with the video engine's generator (server/video/synth.ts) in a child process.
- * Note: a child process rather than an import, because the browser tests' TypeScript project holds tests/e2e only.
- */
-function renderClip(videoPath: string, spec: Record<string, unknown>): { videoPath: string; truth: Truth } {
-  const synth = pathToFileURL(resolve('server/video/synth.ts')).href;
-  const code =
-    `import { renderFlightClip } from ${JSON.stringify(synth)};` +
-    'renderFlightClip(process.argv[1], JSON.parse(process.argv[2])).then((r) => process.stdout.write(JSON.stringify({ truthPath: r.truthPath })));';
-  const run = spawnSync('npx', ['tsx', '--input-type=module', '--eval', code, videoPath, JSON.stringify(spec)], { encoding: 'utf8' });
-  if (run.status !== 0) throw new Error(`The test clip could not be generated: ${run.stderr || run.stdout}`);
-  const { truthPath } = JSON.parse(run.stdout) as { truthPath: string };
-  return { videoPath, truth: JSON.parse(readFileSync(truthPath, 'utf8')) as Truth };
 }
 
 /** Screen position of an image pixel, from the viewer's current zoom and pan (its data-view attribute). */

@@ -1,0 +1,86 @@
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Request, Route } from 'playwright-core';
+import { DEMO_USERS, launchBrowser, screenshot, signIn, withPage } from './support/browser';
+import { renderClip } from './support/clips';
+
+/**
+ * A video upload through the upload dialog goes over the resumable protocol: the connection drops (every part
+ * refused by the network), the page is reloaded, the coach chooses the same file again, and the upload carries on
+ * with the upload the server already holds (one creation only) until the clip is kept and processed.
+ */
+describe('Clips: a resumable video upload that survives a dropped connection and a reload', () => {
+  let browser: Browser;
+  let workDir: string;
+  let videoPath: string;
+
+  beforeAll(async () => {
+    workDir = mkdtempSync(join(tmpdir(), 'arcwright-e2e-resumable-'));
+    videoPath = renderClip(join(workDir, 'fennick-kick.mp4'), { width: 320, height: 240, captureFps: 30, durationS: 1.2, ballRadiusPx: 5, seed: 3 }).videoPath;
+    browser = await launchBrowser();
+  }, 120000);
+
+  afterAll(async () => {
+    await browser?.close();
+    if (workDir) rmSync(workDir, { recursive: true, force: true });
+  });
+
+  it('resumes after a dropped connection and a reload, creating the upload once, and the clip is processed', async () => {
+    await withPage(browser, async (page, errors) => {
+      const calls: string[] = [];
+      let dropParts = true;
+      let dropped = 0;
+      page.on('request', (req: Request) => {
+        if (/\/clips\/uploads(\/|$)/.test(new URL(req.url()).pathname)) calls.push(req.method());
+      });
+      await page.route('**/clips/uploads/*', async (route: Route) => {
+        if (route.request().method() === 'PATCH' && dropParts) {
+          dropped++;
+          await route.abort('connectionreset');
+        } else await route.continue();
+      });
+
+      await signIn(page, DEMO_USERS.coach.email);
+      await page.getByTestId('rail-sessions').click();
+      await page.getByTestId('sessions-table').waitFor();
+      await page.getByTestId('primary-action').click();
+      const venue = `Fennick Vale, east pitch ${Date.now().toString(36)}`;
+      await page.getByTestId('session-venue').fill(venue);
+      await page.getByTestId('session-save').click();
+      await page.getByTestId('session-dialog').waitFor({ state: 'detached' });
+      await page.getByRole('link', { name: venue }).click();
+      await page.getByTestId('session-facts').waitFor();
+
+      // First try: every part is cut off by the network; the client keeps retrying.
+      await page.getByTestId('primary-action').click();
+      await page.getByTestId('upload-file').setInputFiles(videoPath);
+      await page.getByTestId('upload-submit').click();
+      await page.getByTestId('upload-progress').waitFor();
+      await expect.poll(() => dropped, { timeout: 20000 }).toBeGreaterThanOrEqual(2);
+      await screenshot(page, 'resumable-01-connection-dropped');
+
+      // A reload, then the same file again: the earlier upload is picked up, not started anew.
+      await page.reload();
+      await page.getByTestId('session-facts').waitFor();
+      await page.getByTestId('primary-action').click();
+      await page.getByTestId('upload-file').setInputFiles(videoPath);
+      await page.getByTestId('upload-submit').click();
+      await page.getByTestId('upload-resumed').waitFor({ timeout: 10000 });
+      await screenshot(page, 'resumable-02-carrying-on');
+      dropParts = false;
+
+      await page.getByTestId('upload-dialog').waitFor({ state: 'detached', timeout: 60000 });
+      const card = page.getByTestId('clip-card').first();
+      await card.waitFor();
+      await card.locator('[data-testid="clip-status"][data-status="ready"]').waitFor({ timeout: 90000 });
+      await screenshot(page, 'resumable-03-processed');
+
+      expect(calls.filter((m) => m === 'POST')).toHaveLength(1);
+      expect(calls).toContain('HEAD');
+      expect(calls.filter((m) => m === 'PATCH').length).toBeGreaterThan(dropped);
+      expect(errors.filter((e) => !/ERR_CONNECTION_RESET|Failed to load resource/.test(e))).toEqual([]);
+    });
+  });
+});
