@@ -207,13 +207,18 @@ export async function sweepExpiredUploads(): Promise<number> {
 
 let sweeper: NodeJS.Timeout | null = null;
 
-/** Sweeps expired uploads every `UPLOAD_SWEEP_MINUTES` in this process (the timer never keeps it alive). */
+/**
+ * Sweeps expired uploads now (what expired while the process was down) and then every `UPLOAD_SWEEP_MINUTES`
+ * (0: never) in this process; the timer never keeps the process alive.
+ */
 export function startUploadSweeper(onError: (err: unknown) => void): void {
   if (sweeper || config.uploads.resumableSweepMs === 0) return;
-  sweeper = setInterval(() => {
+  const sweep = () => {
     sweepExpiredUploads().catch(onError);
-  }, config.uploads.resumableSweepMs);
+  };
+  sweeper = setInterval(sweep, config.uploads.resumableSweepMs);
   sweeper.unref();
+  sweep();
 }
 
 export function stopUploadSweeper(): void {

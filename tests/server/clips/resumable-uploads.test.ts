@@ -275,6 +275,17 @@ describe('resumable clip uploads (tus)', () => {
       await offsetStays();
     });
 
+    it('keeps the owner the server wrote, whatever owner the client puts in the metadata', async () => {
+      const res = await start(fx.coach, 1000, { filename: 'a.mp4', clubId: String(fx.otherClubId), userId: String(fx.members.admin.userId), sessionId: '1' });
+      expect(res.status).toBe(201);
+      const spoofed = res.headers.location as string;
+      expect((await fx.admin.agent.head(spoofed).set(TUS)).status).toBe(404);
+      const head = await fx.coach.agent.head(spoofed).set(TUS);
+      expect(head.status).toBe(200);
+      expect(Metadata.parse(head.headers['upload-metadata'] as string)).toMatchObject({ clubId: String(fx.clubId), sessionId: String(sessionId), userId: String(fx.members.coach.userId) });
+      await fx.coach.agent.delete(spoofed).set(TUS).set('X-CSRF-Token', fx.coach.csrfToken!);
+    });
+
     it('answers an athlete 403 at creation, for the offset, a part and a removal', async () => {
       expect((await start(fx.athlete, 1000)).status).toBe(403);
       expect((await fx.athlete.agent.head(location).set(TUS)).status).toBe(403);
