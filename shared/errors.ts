@@ -23,6 +23,7 @@ export const ERROR_CODES = {
   CALIBRATION_REQUIRED: 409,
   MEDIA_UNREADABLE: 422,
   UPLOAD_EXPIRED: 410,
+  UPLOAD_BUSY: 423,
   // Members, invitations, password reset and e-mail.
   INVITATION_INVALID: 404,
   INVITATION_EXPIRED: 410,

@@ -3,7 +3,8 @@
  * `POST …/clips/uploads` starts one (Upload-Length, Upload-Metadata with `filename` and the clip fields),
  * `HEAD …/clips/uploads/:uploadId` tells how many bytes arrived, `PATCH` sends the next bytes from there, and
  * the PATCH that brings the last byte answers 201 with the new clip and its processing job, as a multipart
- * upload does. `DELETE` abandons one. The same session, club-scope, role and CSRF checks as every write run
+ * upload does (a HEAD after it answers "complete" with the clip's and job's ids in `Arcwright-Clip-Id` and
+ * `Arcwright-Job-Id`, for a client that lost that answer). `DELETE` abandons one. The same session, club-scope, role and CSRF checks as every write run
  * before the protocol; each upload belongs to the member who started it.
  */
 import { Router, type Request, type Response } from 'express';
@@ -15,7 +16,7 @@ import { ApiError, parseId } from '../http/errors';
 import { clubAccess, clubOf } from '../middleware/authorize';
 import { validationError } from '../middleware/validate';
 import { log } from '../logger';
-import { checkUploadCreation, checkUploadHead, expiredUpload, finishUpload, findOwnUpload, metadataFields, partialUploadStore } from '../services/clip-uploads';
+import { checkUploadCreation, checkUploadHead, expiredUpload, finishUpload, findOwnReceipt, findOwnUpload, metadataFields, partialUploadStore } from '../services/clip-uploads';
 import { tooLarge } from '../services/clips';
 
 const UPLOADS = '/clubs/:clubId/sessions/:sessionId/clips/uploads';
@@ -170,6 +171,22 @@ clipUploadsRouter.post(UPLOADS, clubAccess('admin', 'coach'), async (req, res) =
 
 clipUploadsRouter.head(`${UPLOADS}/:uploadId`, clubAccess('admin', 'coach'), async (req, res) => {
   requireProtocol(req);
+  const receipt = await findOwnReceipt(clubOf(req), req.user!.id, parseId(req.params.sessionId, 'session'), String(req.params.uploadId));
+  if (receipt) {
+    // A finished upload whose answer may have been lost: complete, and here is its clip (423 while it is being kept).
+    if (receipt.clipId === null) throw new ApiError('UPLOAD_BUSY', 'This upload is being checked and kept right now. Ask again in a moment.');
+    res.set({
+      'Tus-Resumable': TUS_VERSION,
+      'Cache-Control': 'no-store',
+      'Upload-Offset': String(receipt.sizeBytes),
+      'Upload-Length': String(receipt.sizeBytes),
+      'Arcwright-Clip-Id': String(receipt.clipId),
+      'Arcwright-Job-Id': String(receipt.jobId),
+      'Access-Control-Expose-Headers': 'Upload-Offset, Upload-Length, Tus-Resumable, Arcwright-Clip-Id, Arcwright-Job-Id',
+    });
+    res.status(200).end();
+    return;
+  }
   await ownUpload(req);
   await runProtocol(req, res);
 });

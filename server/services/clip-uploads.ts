@@ -4,7 +4,7 @@
  * its last byte is in, becomes a clip through the same `acceptUpload` as a multipart upload. Its bytes wait
  * in the storage's partial-uploads folder; an upload left unfinished expires and its bytes go.
  */
-import { rename, rm } from 'node:fs/promises';
+import { readFile, readdir, rename, rm, stat, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { FileStore } from '@tus/file-store';
 import { ERRORS, type Upload } from '@tus/server';
@@ -157,48 +157,104 @@ export async function checkUploadHead(upload: Upload): Promise<void> {
   }
 }
 
-/** Removes an upload's bytes and its record (nothing happens when they are gone already). */
-export async function removeUpload(uploadId: string): Promise<void> {
+/** Removes an upload's bytes and its record, and its receipt with `receipt: true` (nothing happens for what is gone). */
+export async function removeUpload(uploadId: string, options: { receipt?: boolean } = {}): Promise<void> {
   if (!isUploadId(uploadId)) return;
   const dir = await storage().partialUploadsDir();
-  await Promise.all([rm(join(dir, uploadId), { force: true }), rm(join(dir, `${uploadId}.json`), { force: true })]);
+  const names = [uploadId, `${uploadId}.json`, ...(options.receipt ? [`${uploadId}${RECEIPT_SUFFIX}`] : [])];
+  await Promise.all(names.map((name) => rm(join(dir, name), { force: true })));
+}
+
+/**
+ * What became of a finished upload, kept beside the uploads in progress until it expires like them, so that a
+ * client whose answer to the last part was lost (a dropped connection) learns its clip instead of sending the
+ * file again: `clipId` null while the clip is being kept.
+ */
+export interface UploadReceipt {
+  clubId: string;
+  sessionId: string;
+  userId: string;
+  sizeBytes: number;
+  clipId: number | null;
+  jobId: number | null;
+  keptAt: string;
+}
+
+const RECEIPT_SUFFIX = '.kept';
+
+async function readJson<T>(path: string): Promise<T | null> {
+  try {
+    return JSON.parse(await readFile(path, 'utf8')) as T;
+  } catch {
+    return null;
+  }
+}
+
+async function writeReceipt(uploadId: string, receipt: UploadReceipt): Promise<void> {
+  await writeFile(join(await storage().partialUploadsDir(), `${uploadId}${RECEIPT_SUFFIX}`), JSON.stringify(receipt));
+}
+
+/** The receipt of an upload of the caller's that has finished (or is being kept right now), else null. */
+export async function findOwnReceipt(club: ClubContext, userId: number, sessionId: number, uploadId: string): Promise<UploadReceipt | null> {
+  if (!isUploadId(uploadId)) return null;
+  const receipt = await readJson<UploadReceipt>(join(await storage().partialUploadsDir(), `${uploadId}${RECEIPT_SUFFIX}`));
+  if (!receipt || receipt.clubId !== String(club.id) || receipt.sessionId !== String(sessionId) || receipt.userId !== String(userId)) return null;
+  return receipt;
 }
 
 /**
  * Turns a complete upload into a clip: its file moves into a work folder (the upload is gone from then on,
  * whatever the outcome) and goes through `acceptUpload`, which checks it, keeps it and queues its processing.
+ * A receipt says "being kept" meanwhile and names the clip afterwards; a refused upload leaves none.
  */
 export async function finishUpload(club: ClubContext, sessionId: number, upload: Upload) {
   const meta = upload.metadata ?? {};
+  const fields = metadataFields(meta);
+  if (!fields.success) throw new Error(`Upload ${upload.id} holds fields that were checked at its creation and no longer parse.`);
+  const sizeBytes = upload.size ?? upload.offset;
+  const receipt: UploadReceipt = { clubId: String(club.id), sessionId: String(sessionId), userId: meta.userId ?? '', sizeBytes, clipId: null, jobId: null, keptAt: new Date().toISOString() };
+  await writeReceipt(upload.id, receipt);
   const workDir = await storage().workDir('upload');
   const path = join(workDir, 'part-0');
   try {
-    await rename(upload.storage?.path ?? join(await storage().partialUploadsDir(), upload.id), path);
-  } finally {
-    await removeUpload(upload.id);
+    try {
+      await rename(upload.storage?.path ?? join(await storage().partialUploadsDir(), upload.id), path);
+    } finally {
+      await removeUpload(upload.id);
+    }
+    const result = await acceptUpload(club, sessionId, { fields: fields.data, video: [{ path, originalName: meta.filename ?? 'video', sizeBytes }], frames: [], workDir }, config.uploads.maxBytes);
+    await writeReceipt(upload.id, { ...receipt, clipId: result.clip.id, jobId: result.job.id });
+    return result;
+  } catch (err) {
+    await rm(workDir, { recursive: true, force: true });
+    await removeUpload(upload.id, { receipt: true });
+    throw err;
   }
-  const fields = metadataFields(meta);
-  if (!fields.success) throw new Error(`Upload ${upload.id} holds fields that were checked at its creation and no longer parse.`);
-  return acceptUpload(
-    club,
-    sessionId,
-    { fields: fields.data, video: [{ path, originalName: meta.filename ?? 'video', sizeBytes: upload.size ?? upload.offset }], frames: [], workDir },
-    config.uploads.maxBytes,
-  );
 }
 
 /**
- * Removes the uploads that expired unfinished, and records whose bytes are gone; returns how many.
- * Note: FileStore's own deleteExpired stops at the first record whose file is missing, hence this loop.
+ * Removes what expired in the partial-uploads folder: unfinished uploads (from their creation), receipts (from
+ * the time their clip was kept), and bytes or records left without their other half (from the file's time).
+ * Returns how many uploads went. Note: FileStore's own deleteExpired lists only uploads whose bytes and record are
+ * both there, and stops at the first it cannot remove; hence this walk of the folder.
  */
 export async function sweepExpiredUploads(): Promise<number> {
-  const store = await partialUploadStore();
-  const ids = (await store.configstore.list?.()) ?? [];
+  const expiry = config.uploads.resumableExpiryMs;
+  if (expiry <= 0) return 0;
+  const dir = await storage().partialUploadsDir();
+  const ids = new Set((await readdir(dir)).map((name) => name.slice(0, 32)).filter(isUploadId));
   let removed = 0;
   for (const id of ids) {
-    const info = await store.configstore.get(id);
-    if (!info || isExpired(info as Upload)) {
-      await removeUpload(id);
+    const receipt = await readJson<UploadReceipt>(join(dir, `${id}${RECEIPT_SUFFIX}`));
+    const record = await readJson<{ creation_date?: string }>(join(dir, `${id}.json`));
+    let since = Date.parse(receipt?.keptAt ?? record?.creation_date ?? '');
+    if (Number.isNaN(since)) {
+      const names = [id, `${id}.json`, `${id}${RECEIPT_SUFFIX}`];
+      const times = await Promise.all(names.map((name) => stat(join(dir, name)).then((info) => info.mtimeMs, () => Number.NaN)));
+      since = Math.max(...times.filter((t) => !Number.isNaN(t)));
+    }
+    if (Date.now() > since + expiry) {
+      await removeUpload(id, { receipt: true });
       removed++;
     }
   }

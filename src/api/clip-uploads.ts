@@ -1,17 +1,22 @@
 /**
  * Resumable video uploads (the tus protocol through tus-js-client): the video goes in parts, a dropped
  * connection is retried from the last byte the server holds, and the upload's address is kept in localStorage
- * under a fingerprint of the file, so that choosing the same file again after a reload resumes it.
+ * under a fingerprint of the file, so that choosing the same file again after a reload resumes it. An upload whose
+ * last answer was lost is found complete on resuming, and its clip is read instead of the file being sent again.
  */
-import { Upload, type DetailedError } from 'tus-js-client';
+import { Upload, type DetailedError, type HttpResponse } from 'tus-js-client';
 import type { DataResponse } from '@shared/types/api';
 import type { Clip, Job } from '@shared/schemas/clip';
 import { apiUrl, getCsrfToken, resetCsrfToken } from './http';
 import { ApiRequestError, networkError, toApiRequestError } from './errors';
-import type { UploadProgress, UploadRequest } from './clips';
+import { fetchClip, type UploadProgress, type UploadRequest } from './clips';
+import { fetchJob } from './jobs';
 
-/** Bytes per request: small enough to lose little on a mobile network, large enough to keep requests few. */
-const PART_BYTES = 16 * 1024 * 1024;
+/**
+ * Bytes per request: small enough to lose little on a mobile network and to arrive within Node's 300 s request
+ * timeout at 0.25 Mbit/s, large enough to keep requests few.
+ */
+const PART_BYTES = 8 * 1024 * 1024;
 /** Waits (ms) before each new try after a dropped connection or a server restart; then the upload fails. */
 const RETRY_DELAYS_MS = [0, 1000, 3000, 5000, 10_000, 20_000, 30_000];
 
@@ -42,7 +47,27 @@ function requestError(error: Error | DetailedError): ApiRequestError {
   return toApiRequestError(response.getStatus(), body);
 }
 
-function sendOnce(endpoint: string, file: File, req: UploadRequest, token: string, callbacks: ResumableCallbacks, signal?: AbortSignal) {
+/**
+ * The clip and job of a finished upload: in the body of the answer to its last part, or, when that answer was lost
+ * and the upload was found complete on resuming, named by the headers of that check.
+ */
+async function keptClip(clubId: number, response: HttpResponse): Promise<{ clip: Clip; job: Job }> {
+  const body = response.getBody();
+  if (body) {
+    try {
+      return (JSON.parse(body) as DataResponse<{ clip: Clip; job: Job }>).data;
+    } catch {
+      throw toApiRequestError(response.getStatus(), undefined);
+    }
+  }
+  const clipId = Number(response.getHeader('Arcwright-Clip-Id'));
+  const jobId = Number(response.getHeader('Arcwright-Job-Id'));
+  if (!Number.isInteger(clipId) || !Number.isInteger(jobId) || clipId <= 0 || jobId <= 0) throw toApiRequestError(response.getStatus(), undefined);
+  const [clip, job] = await Promise.all([fetchClip(clubId, clipId), fetchJob(clubId, jobId)]);
+  return { clip, job };
+}
+
+function sendOnce(clubId: number, endpoint: string, file: File, req: UploadRequest, token: string, callbacks: ResumableCallbacks, signal?: AbortSignal) {
   return new Promise<{ clip: Clip; job: Job }>((resolve, reject) => {
     const upload = new Upload(file, {
       endpoint,
@@ -58,11 +83,7 @@ function sendOnce(endpoint: string, file: File, req: UploadRequest, token: strin
         return status === 0 || status === 409 || status === 423 || status >= 500;
       },
       onSuccess: ({ lastResponse }) => {
-        try {
-          resolve((JSON.parse(lastResponse.getBody()) as DataResponse<{ clip: Clip; job: Job }>).data);
-        } catch {
-          reject(toApiRequestError(lastResponse.getStatus(), undefined));
-        }
+        keptClip(clubId, lastResponse).then(resolve, reject);
       },
       onError: (error) => reject(requestError(error)),
     });
@@ -105,7 +126,7 @@ export async function uploadVideoResumable(
   for (let attempt = 0; ; attempt += 1) {
     const token = await getCsrfToken();
     try {
-      return await sendOnce(endpoint, file, req, token, callbacks, signal);
+      return await sendOnce(clubId, endpoint, file, req, token, callbacks, signal);
     } catch (error) {
       if (error instanceof ApiRequestError && error.code === 'CSRF_INVALID' && attempt === 0) {
         // The session was renewed since the token was fetched: one more try with a fresh token resumes the upload.

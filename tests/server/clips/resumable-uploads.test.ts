@@ -1,4 +1,4 @@
-import { readFile, writeFile, mkdtemp, rm } from 'node:fs/promises';
+import { mkdtemp, readFile, rm, utimes, writeFile } from 'node:fs/promises';
 import type { Server as HttpServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
@@ -124,7 +124,8 @@ describe('resumable clip uploads (tus)', () => {
     expect(rest.headers.get('upload-offset')).toBe(String(video.length));
     const { clip, job } = ((await rest.json()) as { data: { clip: Record<string, unknown>; job: { id: number } } }).data;
     expect(clip).toMatchObject({ label: 'Punt, cut at half', originalName: 'punt.mp4', kind: 'video', sizeBytes: video.length, frameCount: 48, status: 'processing' });
-    expect((await partialFiles()).some((f) => f.includes(location.split('/').pop()!))).toBe(false);
+    const uploadId = location.split('/').pop()!;
+    expect((await partialFiles()).filter((f) => f.includes(uploadId))).toEqual([`.partial-uploads/${uploadId}.kept`]);
     expect(await store.storage.list(`clubs/${fx.clubId}/clips/${clip.id as number}/source`)).toEqual([`clubs/${fx.clubId}/clips/${clip.id as number}/source/video.mp4`]);
     const kept = await store.storage.localPath(`clubs/${fx.clubId}/clips/${clip.id as number}/source/video.mp4`);
     expect((await readFile(kept!.path)).equals(video)).toBe(true);
@@ -132,8 +133,15 @@ describe('resumable clip uploads (tus)', () => {
     expect(await testWorker().drain()).toBeGreaterThanOrEqual(1);
     expect(await getJob(fx.coach, fx.clubId, job.id)).toMatchObject({ status: 'done', progress: 100 });
     expect((await fx.coach.get(clubPath(fx, `/clips/${clip.id as number}`))).body.data).toMatchObject({ status: 'ready', framesReady: true });
-    // The finished upload is gone: asking for it again is 404.
-    expect((await offsetOf(location)).status).toBe(404);
+    // The bytes are gone; asking again (a client that lost the answer) finds the upload complete, with its clip.
+    const again = await offsetOf(location);
+    expect(again.status).toBe(200);
+    expect(again.headers.get('upload-offset')).toBe(String(video.length));
+    expect(again.headers.get('upload-length')).toBe(String(video.length));
+    expect(again.headers.get('arcwright-clip-id')).toBe(String(clip.id));
+    expect(again.headers.get('arcwright-job-id')).toBe(String(job.id));
+    expect((await fx.admin.agent.head(location).set(TUS)).status).toBe(404);
+    expect((await fx.outsider.agent.head(location).set(TUS)).status).toBe(404);
   });
 
   it('answers a part that does not start at the offset with 409 and a message saying what to do', async () => {
@@ -191,7 +199,8 @@ describe('resumable clip uploads (tus)', () => {
     const text = await readFile(bad.textAsMp4);
     const location = await startOverHttp(text.length, { filename: 'notes.mp4' });
     const before = await clipRowCount(fx.clubId);
-    const filesBefore = (await store.files()).filter((f) => !f.startsWith('.partial-uploads/'));
+    const outsidePartial = async () => (await store.files()).filter((f) => !f.startsWith('.partial-uploads/'));
+    const filesBefore = await outsidePartial();
     const res = await patch(location, 0, text);
     expect(res.status).toBe(415);
     const body = (await res.json()) as { error: { code: string; message: string } };
@@ -199,7 +208,18 @@ describe('resumable clip uploads (tus)', () => {
     expect(body.error.message).toMatch(/not a video/);
     expect(body.error.message).not.toMatch(/\/tmp\/|\.work|part-\d|partial/);
     expect(await clipRowCount(fx.clubId)).toEqual(before);
-    expect(await store.files()).toEqual(filesBefore);
+    expect(await outsidePartial()).toEqual(filesBefore);
+    expect((await partialFiles()).some((f) => f.includes(location.split('/').pop()!))).toBe(false);
+    expect((await offsetOf(location)).status).toBe(404);
+  });
+
+  it('answers 423 while a finished upload is being kept, so that a client asks again instead of starting over', async () => {
+    const id = 'b'.repeat(32);
+    const receipt = { clubId: String(fx.clubId), sessionId: String(sessionId), userId: String(fx.members.coach.userId), sizeBytes: 10, clipId: null, jobId: null, keptAt: new Date().toISOString() };
+    await writeFile(join(store.root, '.partial-uploads', `${id}.kept`), JSON.stringify(receipt));
+    expect((await offsetOf(`${uploadsPath()}/${id}`)).status).toBe(423);
+    expect((await fx.admin.agent.head(`${uploadsPath()}/${id}`).set(TUS)).status).toBe(404);
+    await rm(join(store.root, '.partial-uploads', `${id}.kept`));
   });
 
   it('removes the bytes of an upload the coach abandons (DELETE)', async () => {
@@ -230,9 +250,15 @@ describe('resumable clip uploads (tus)', () => {
       code: 'UPLOAD_EXPIRED',
       message: expect.stringMatching(/unfinished for more than 1 hours.*Start the upload again/),
     });
-    expect(await sweepExpiredUploads()).toBe(1);
+    // A receipt expires too, and bytes left without their record.
+    const oldReceipt = 'c'.repeat(32);
+    await writeFile(join(store.root, '.partial-uploads', `${oldReceipt}.kept`), JSON.stringify({ keptAt: new Date(Date.now() - 2 * 3600_000).toISOString() }));
+    const stray = 'd'.repeat(32);
+    await writeFile(join(store.root, '.partial-uploads', stray), 'bytes');
+    await utimes(join(store.root, '.partial-uploads', stray), new Date(Date.now() - 2 * 3600_000), new Date(Date.now() - 2 * 3600_000));
+    expect(await sweepExpiredUploads()).toBe(3);
     const left = await partialFiles();
-    expect(left.some((f) => f.includes(id))).toBe(false);
+    expect(left.some((f) => f.includes(id) || f.includes(oldReceipt) || f.includes(stray))).toBe(false);
     expect(left.some((f) => f.includes(keep.split('/').pop()!))).toBe(true);
     expect((await offsetOf(keep)).status).toBe(200);
     await coach.fetch(keep, { method: 'DELETE', headers: TUS });

@@ -102,7 +102,8 @@ describe('SIGTERM with an upload in flight', () => {
     expect(await testWorker().drain()).toBeGreaterThanOrEqual(1);
     expect(await getJob(fx.coach, fx.clubId, job.id)).toMatchObject({ status: 'done', progress: 100 });
     expect((await fx.coach.get(clubPath(fx, `/clips/${clip.id}`))).body.data).toMatchObject({ status: 'ready', framesReady: true, frameCount: 48 });
-    const leftBehind = (await store.files()).filter((f) => f.startsWith('.partial-uploads/') || f.startsWith('.work/'));
+    // Only the finished upload's receipt stays (until it expires): no bytes, no work folder.
+    const leftBehind = (await store.files()).filter((f) => (f.startsWith('.partial-uploads/') && !f.endsWith('.kept')) || f.startsWith('.work/'));
     expect(leftBehind).toEqual([]);
     console.log(`SIGTERM with an upload in flight: 1 upload, answered ${answer!.status}, exit code 0, clip ${clip.id} processed, ${leftBehind.length} files left behind`);
   });
