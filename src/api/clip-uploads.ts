@@ -27,7 +27,7 @@ export interface ResumableCallbacks {
 }
 
 /** The clip fields of a multipart upload, as upload metadata. */
-function metadataOf(file: File, req: UploadRequest): Record<string, string> {
+export function metadataOf(file: File, req: UploadRequest): Record<string, string> {
   const meta: Record<string, string> = { filename: file.name, filetype: file.type || 'application/octet-stream', slowMotion: req.slowMotion ? 'true' : 'false' };
   if (req.captureFps !== null && Number.isFinite(req.captureFps)) meta.captureFps = String(req.captureFps);
   if (req.label && req.label.trim() !== '') meta.label = req.label.trim();
@@ -51,7 +51,7 @@ function requestError(error: Error | DetailedError): ApiRequestError {
  * The clip and job of a finished upload: in the body of the answer to its last part, or, when that answer was lost
  * and the upload was found complete on resuming, named by the headers of that check.
  */
-async function keptClip(clubId: number, response: HttpResponse): Promise<{ clip: Clip; job: Job }> {
+export async function keptClip(clubId: number, response: HttpResponse): Promise<{ clip: Clip; job: Job }> {
   const body = response.getBody();
   if (body) {
     try {
