@@ -13,9 +13,11 @@ import { sequelize } from './db';
 import { csrfProtection } from './http/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import type { LimitOptions } from './http/rate-limit';
+import { accessLog } from './http/access-log';
 import { requestId } from './http/request-id';
 import { sessionMiddleware } from './http/session';
 import './http/types';
+import { closeConnectionsWhileDraining } from './lifecycle';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
@@ -85,6 +87,8 @@ export function createApp(options: AppOptions = {}): Express {
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy);
   app.use(requestId);
+  app.use(accessLog());
+  app.use(closeConnectionsWhileDraining);
   app.use(securityHeaders());
 
   // The payment webhook reads its raw body (the signature covers the exact bytes): before express.json().

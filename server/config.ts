@@ -160,6 +160,13 @@ export const config = {
   uploads: {
     maxBytes: int('UPLOAD_MAX_BYTES', 1024 * 1024 * 1024),
   },
+  shutdown: {
+    /**
+     * On SIGTERM, how long requests in flight (uploads included) and running jobs may take before they are
+     * cut (`SHUTDOWN_GRACE_MS`, default 25 s). Compose's stop_grace_period must be longer.
+     */
+    graceMs: int('SHUTDOWN_GRACE_MS', 25_000),
+  },
 };
 
 export type Config = typeof config;

@@ -14,6 +14,7 @@ import { acceptUpload, deleteClip, frameImage, getClip, listClips, listSessionCl
 import { assertClubCanRecord } from '../services/subscriptions';
 import { findVisibleSession } from '../services/visibility';
 import { storage } from '../storage';
+import { uploadWorkPurpose } from '../storage/work-names';
 
 /** Most files in one frame-set upload. */
 const MAX_FRAMES = MAX_TRACK_POINTS;
@@ -27,7 +28,7 @@ async function receive(req: Request, res: Response, maxBytes: number): Promise<{
     res.setHeader('Connection', 'close');
     throw tooLarge(maxBytes);
   }
-  const workDir = await storage().workDir('upload');
+  const workDir = await storage().workDir(uploadWorkPurpose());
   let n = 0;
   const upload = multer({
     storage: multer.diskStorage({ destination: workDir, filename: (_req, _file, cb) => cb(null, `part-${n++}`) }),

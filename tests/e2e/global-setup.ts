@@ -127,7 +127,8 @@ export default async function setup(project: TestProject): Promise<() => Promise
   // The children are ordinary servers, not Vitest workers: drop Vitest's variables so they use DB_NAME.
   const env: NodeJS.ProcessEnv = Object.fromEntries(Object.entries(process.env).filter(([key]) => !key.startsWith('VITEST')));
   Object.assign(env, {
-    NODE_ENV: 'production',
+    // The local stand-ins run beside it, which a production process refuses (server/startup-checks.ts).
+    NODE_ENV: 'development',
     HOST,
     PORT: String(appPort),
     DB_HOST: dbSettings.host,
