@@ -179,7 +179,9 @@ function runFfmpeg(args: string[], signal: AbortSignal | undefined, onFrame: (fr
     const onAbort = (): void => {
       child.kill('SIGKILL');
     };
-    signal?.addEventListener('abort', onAbort, { once: true });
+    // Note: a signal aborted before the spawn never fires 'abort' again.
+    if (signal?.aborted) onAbort();
+    else signal?.addEventListener('abort', onAbort, { once: true });
     let stderr = '';
     let pending = '';
     child.stdout.setEncoding('utf8');

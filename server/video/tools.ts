@@ -92,7 +92,9 @@ export function runTool(
     const onAbort = (): void => {
       child.kill('SIGKILL');
     };
-    opts.signal?.addEventListener('abort', onAbort, { once: true });
+    // Note: a signal aborted before the spawn never fires 'abort' again.
+    if (opts.signal?.aborted) onAbort();
+    else opts.signal?.addEventListener('abort', onAbort, { once: true });
     child.stdout!.setEncoding('utf8');
     child.stderr!.setEncoding('utf8');
     child.stdout!.on('data', (d: string) => {
