@@ -21,7 +21,6 @@ const MAX_FRAMES = MAX_TRACK_POINTS;
 /** Room for multipart boundaries and text fields when judging the declared length against the limit. */
 const MULTIPART_OVERHEAD_BYTES = 1024 * 1024;
 
-// eslint-disable-next-line no-control-regex
 const CONTROL_CHARACTER = /[\u0000-\u001f\u007f]/;
 
 /** Runs multer into a fresh work folder in storage (streamed to disk, never held in memory). */
