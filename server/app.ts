@@ -35,6 +35,8 @@ import { sessionsRouter } from './routes/sessions';
 export interface AppOptions {
   /** Overrides of the sign-in limit (failed attempts per IP and e-mail); tests lower it. */
   signinLimit?: Partial<LimitOptions>;
+  /** Overrides of the sign-in limit per IP address across all e-mails. */
+  signinAddressLimit?: Partial<LimitOptions>;
   /** Overrides of the sign-up limit (per IP); tests raise it. */
   signupLimit?: Partial<LimitOptions>;
   /** Overrides of the password-reset request limit (per IP and e-mail). */
@@ -106,6 +108,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(
     authRouter({
       signinLimit: { windowMs: config.rateLimit.signinWindowMs, max: config.rateLimit.signinMax, ...options.signinLimit },
+      signinAddressLimit: { windowMs: config.rateLimit.signinWindowMs, max: config.rateLimit.signinAddressMax, ...options.signinAddressLimit },
       signupLimit: { windowMs: config.rateLimit.signupWindowMs, max: config.rateLimit.signupMax, ...options.signupLimit },
     }),
   );
