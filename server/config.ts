@@ -154,7 +154,7 @@ export const config = {
     authUrl: str('GOOGLE_AUTH_URL', `${oauthFakeBase}/authorize`),
     tokenUrl: str('GOOGLE_TOKEN_URL', `${oauthFakeBase}/token`),
     userinfoUrl: str('GOOGLE_USERINFO_URL', `${oauthFakeBase}/userinfo`),
-    callbackUrl: str('GOOGLE_CALLBACK_URL', `http://${host}:${port}/api/v1/auth/google/callback`),
+    callbackUrl: str('GOOGLE_CALLBACK_URL', `${(publicUrl || `http://${host}:${port}`).replace(/\/+$/, '')}/api/v1/auth/google/callback`),
   },
   passwords: {
     /**

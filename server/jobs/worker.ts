@@ -83,6 +83,11 @@ export class JobWorker {
     log.info('Job worker stopped', { worker: this.id });
   }
 
+  /** True while the worker runs and its last claim reached the database (what the heartbeat reports). */
+  healthy(): boolean {
+    return this.running && this.backOff.failuresInRow === 0;
+  }
+
   /** Claims and runs one job if any is claimable; true when one ran. For tests and scripts. */
   async runOnce(): Promise<boolean> {
     const claim = await claimNext(this.id, { types: [...this.handlers.keys()], leaseMs: this.leaseMs });
