@@ -145,21 +145,27 @@ async function databaseRestart(db: BenchDatabase, app: BenchApp, client: BenchCl
   const other: string[] = [];
   let next = 0;
   let restarted = false;
+  let firstAfterStart = 0;
   const outage = { stoppedAt: 0, startedAt: 0 };
+  /** Seconds since the database was stopped (negative before), for the answers that are neither 201 nor 503. */
+  const since = () => (outage.stoppedAt === 0 ? 'before the stop' : `${((Date.now() - outage.stoppedAt) / 1000).toFixed(1)} s after the stop`);
   const writer = async (): Promise<void> => {
     while (next < WRITES) {
       const i = next++;
       const venue = `fault-${process.pid}-${i}`;
       try {
         const res = await newSession(client, clubId, venue);
-        if (res.status === 201) acknowledged.push({ id: (res.body?.data as { id: number }).id, venue });
+        if (res.status === 201) {
+          acknowledged.push({ id: (res.body?.data as { id: number }).id, venue });
+          if (outage.startedAt > 0 && firstAfterStart === 0) firstAfterStart = Date.now();
+        }
         else if (res.status === 503) refused.push(venue);
-        else other.push(`${res.status} ${res.body?.error?.code ?? ''}`);
+        else other.push(`${res.status} ${res.body?.error?.code ?? ''} at ${since()}`);
       } catch (err) {
-        other.push(`network ${(err as Error).message}`);
+        other.push(`network ${(err as Error).message} ${String((err as Error & { cause?: unknown }).cause)} at ${since()}`);
       }
-      // Spread the load over the outage: a few hundred requests over some seconds.
-      await sleep(20);
+      // Spread the writes over about 15 s: some before the stop, many during the outage, the rest after.
+      await sleep(Math.round((CONCURRENCY * 15_000) / WRITES));
     }
   };
   const restart = async (): Promise<void> => {
@@ -188,11 +194,16 @@ async function databaseRestart(db: BenchDatabase, app: BenchApp, client: BenchCl
   console.log(`writes sent          ${acknowledged.length + refused.length + other.length} in ${((Date.now() - started) / 1000).toFixed(1)} s`);
   console.log(`database down        ${((outage.startedAt - outage.stoppedAt) / 1000).toFixed(1)} s (stop, 3 s, start)`);
   console.log(`acknowledged (201)   ${acknowledged.length}`);
+  console.log(`first 201 after the start  ${firstAfterStart > 0 ? `${((firstAfterStart - outage.startedAt) / 1000).toFixed(1)} s` : 'none during the load'}`);
   console.log(`refused (503)        ${refused.length}`);
-  console.log(`other answers        ${other.length}${other.length > 0 ? ` (${[...new Set(other)].slice(0, 5).join('; ')})` : ''}`);
+  console.log(`other answers        ${other.length}`);
+  for (const line of other.slice(0, 10)) console.log(`  ${line}`);
   console.log(`acknowledged missing ${ackMissing}`);
   console.log(`refused but present  ${refusedPresent}`);
   console.log(`recovered, same pid  ${recovered && app.proc.child.pid === pidBefore && app.proc.child.exitCode === null ? 'yes' : 'no'}`);
+  const appErrors = app.proc.logLines().filter((l) => Number(l.level) >= 50);
+  console.log(`app error lines      ${appErrors.length}`);
+  for (const line of appErrors.slice(0, 5)) console.log(`  ${String(line.msg)} ${String(line.error ?? '')}`);
   const ok = ackMissing === 0 && refusedPresent === 0 && other.length === 0 && refused.length > 0 && app.proc.child.exitCode === null;
   console.log(ok ? 'RESULT database restart: ok' : 'RESULT database restart: FAILED');
   if (!ok) process.exitCode = 1;

@@ -113,7 +113,9 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, next) => {
   const known = knownError(err);
   if (known?.code === 'SERVICE_UNAVAILABLE') res.setHeader('Retry-After', String(DATABASE_RETRY_AFTER_S));
   if (known) {
-    if (known.status >= 500) log.error(`${req.method} ${req.originalUrl} -> ${known.code}`, { requestId: req.requestId, error: err instanceof Error ? err.message : String(err) });
+    // A 503 (database outage) is expected while it lasts: a warning per request, not an error with a stack.
+    if (known.status === 503) log.warn(`${req.method} ${req.originalUrl} -> ${known.code}`, { requestId: req.requestId, error: err instanceof Error ? err.message : String(err) });
+    else if (known.status >= 500) log.error(`${req.method} ${req.originalUrl} -> ${known.code}`, { requestId: req.requestId, error: err instanceof Error ? err.message : String(err) });
     const body: { code: ErrorCode; message: string; fields?: Record<string, string> } = { code: known.code, message: known.message };
     if (known.fields) body.fields = known.fields;
     res.status(known.status).json({ error: body });

@@ -14,6 +14,7 @@ export interface Answer {
 export class BenchClient {
   private cookie = '';
   private csrf: string | null = null;
+  private pendingCsrf: Promise<void> | null = null;
 
   constructor(
     readonly base: string,
@@ -49,9 +50,16 @@ export class BenchClient {
     return { status: res.status, body: parsed, ms };
   }
 
-  async refreshCsrf(): Promise<void> {
-    const res = await this.send('GET', '/api/v1/auth/csrf', 'GET /auth/csrf');
-    this.csrf = (res.body?.data as { csrfToken?: string } | undefined)?.csrfToken ?? null;
+  /** One fetch of the token at a time: concurrent requests of one client share its session. */
+  refreshCsrf(): Promise<void> {
+    this.pendingCsrf ??= this.send('GET', '/api/v1/auth/csrf', 'GET /auth/csrf')
+      .then((res) => {
+        this.csrf = (res.body?.data as { csrfToken?: string } | undefined)?.csrfToken ?? null;
+      })
+      .finally(() => {
+        this.pendingCsrf = null;
+      });
+    return this.pendingCsrf;
   }
 
   get(path: string, route = `GET ${path}`): Promise<Answer> {
