@@ -30,7 +30,10 @@ if [ "$FAKES" != "0" ]; then
   wait_for_http "http://127.0.0.1:$PAYMENT_FAKE_PORT/health" 30 "${PIDS[-1]}" || die "The payment fake did not start (port $PAYMENT_FAKE_PORT)."
 fi
 
-NODE_ENV="${NODE_ENV:-production}" start_ts server/index.ts
+# The local stand-ins never run beside a production process (the app refuses to start so): with the
+# fakes on, the app runs in development mode; with FAKES=0 in production mode.
+if [ "$FAKES" != "0" ]; then APP_NODE_ENV="${NODE_ENV:-development}"; else APP_NODE_ENV="${NODE_ENV:-production}"; fi
+NODE_ENV="$APP_NODE_ENV" start_ts server/index.ts
 APP_PID="${PIDS[-1]}"
 wait_for_http "http://$HOST:$PORT/api/v1/health" 60 "$APP_PID" || die "The app did not answer on http://$HOST:$PORT (see the log above)."
 

@@ -13,9 +13,11 @@ import { sequelize } from './db';
 import { csrfProtection } from './http/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import type { LimitOptions } from './http/rate-limit';
+import { accessLog } from './http/access-log';
 import { requestId } from './http/request-id';
 import { sessionMiddleware } from './http/session';
 import './http/types';
+import { closeConnectionsWhileDraining } from './lifecycle';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
@@ -34,6 +36,8 @@ import { sessionsRouter } from './routes/sessions';
 export interface AppOptions {
   /** Overrides of the sign-in limit (failed attempts per IP and e-mail); tests lower it. */
   signinLimit?: Partial<LimitOptions>;
+  /** Overrides of the sign-in limit per IP address across all e-mails. */
+  signinAddressLimit?: Partial<LimitOptions>;
   /** Overrides of the sign-up limit (per IP); tests raise it. */
   signupLimit?: Partial<LimitOptions>;
   /** Overrides of the password-reset request limit (per IP and e-mail). */
@@ -86,6 +90,8 @@ export function createApp(options: AppOptions = {}): Express {
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy);
   app.use(requestId);
+  app.use(accessLog());
+  app.use(closeConnectionsWhileDraining);
   app.use(securityHeaders());
 
   // The payment webhook reads its raw body (the signature covers the exact bytes): before express.json().
@@ -103,6 +109,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(
     authRouter({
       signinLimit: { windowMs: config.rateLimit.signinWindowMs, max: config.rateLimit.signinMax, ...options.signinLimit },
+      signinAddressLimit: { windowMs: config.rateLimit.signinWindowMs, max: config.rateLimit.signinAddressMax, ...options.signinAddressLimit },
       signupLimit: { windowMs: config.rateLimit.signupWindowMs, max: config.rateLimit.signupMax, ...options.signupLimit },
     }),
   );

@@ -8,20 +8,25 @@ import { jobSettings } from './jobs/settings';
 import { JobWorker } from './jobs/worker';
 import { log } from './logger';
 import { startUploadSweeper, stopUploadSweeper } from './services/clip-uploads';
+import { removeStaleWorkFolders } from './jobs/work-folders';
 
 let worker: JobWorker | null = null;
 
 export async function startBackgroundWork(): Promise<void> {
   startUploadSweeper((err) => log.error('expired uploads could not be swept', { stack: err instanceof Error ? err.stack : String(err) }));
   if (worker || jobSettings.workersInWeb === 0) return;
+  await removeStaleWorkFolders();
   worker = new JobWorker({ handlers: JOB_HANDLERS, concurrency: jobSettings.workersInWeb, name: 'web' });
   worker.start();
 }
 
-/** Stops what startBackgroundWork started (called on shutdown): running jobs finish or go back to the queue. */
-export async function stopBackgroundWork(): Promise<void> {
+/**
+ * Stops what startBackgroundWork started (called on shutdown): running jobs finish within `graceMs`
+ * (and JOB_STOP_GRACE_SECONDS) or are stopped and handed back to the queue.
+ */
+export async function stopBackgroundWork(graceMs?: number): Promise<void> {
   stopUploadSweeper();
   const current = worker;
   worker = null;
-  await current?.stop();
+  await current?.stop(graceMs);
 }

@@ -92,6 +92,8 @@ export const config = {
   rateLimit: {
     signinWindowMs: int('SIGNIN_RATE_LIMIT_WINDOW_MINUTES', 15) * 60 * 1000,
     signinMax: int('SIGNIN_RATE_LIMIT_MAX', 10),
+    /** Failed sign-ins per IP address across all e-mails, in the same window. */
+    signinAddressMax: int('SIGNIN_ADDRESS_RATE_LIMIT_MAX', 20),
     signupWindowMs: int('SIGNUP_RATE_LIMIT_WINDOW_MINUTES', 60) * 60 * 1000,
     signupMax: int('SIGNUP_RATE_LIMIT_MAX', 30),
     resetWindowMs: int('PASSWORD_RESET_RATE_LIMIT_WINDOW_MINUTES', 15) * 60 * 1000,
@@ -152,7 +154,14 @@ export const config = {
     authUrl: str('GOOGLE_AUTH_URL', `${oauthFakeBase}/authorize`),
     tokenUrl: str('GOOGLE_TOKEN_URL', `${oauthFakeBase}/token`),
     userinfoUrl: str('GOOGLE_USERINFO_URL', `${oauthFakeBase}/userinfo`),
-    callbackUrl: str('GOOGLE_CALLBACK_URL', `http://${host}:${port}/api/v1/auth/google/callback`),
+    callbackUrl: str('GOOGLE_CALLBACK_URL', `${(publicUrl || `http://${host}:${port}`).replace(/\/+$/, '')}/api/v1/auth/google/callback`),
+  },
+  passwords: {
+    /**
+     * scrypt cost as log2(N) (`PASSWORD_SCRYPT_LOG_N`, default 17: OWASP's N = 2^17 with r = 8, p = 1).
+     * Tests lower it for speed; a stored hash of another cost is re-hashed at its next sign-in.
+     */
+    scryptLogN: int('PASSWORD_SCRYPT_LOG_N', 17),
   },
   storage: {
     dir: resolve(process.cwd(), str('STORAGE_DIR', '.data/storage')),
@@ -163,6 +172,13 @@ export const config = {
     resumableExpiryMs: int('UPLOAD_RESUME_HOURS', 24) * 3600 * 1000,
     /** How often the web process removes expired resumable uploads. */
     resumableSweepMs: int('UPLOAD_SWEEP_MINUTES', 15) * 60 * 1000,
+  },
+  shutdown: {
+    /**
+     * On SIGTERM, how long requests in flight (uploads included) and running jobs may take before they are
+     * cut (`SHUTDOWN_GRACE_MS`, default 25 s). Compose's stop_grace_period must be longer.
+     */
+    graceMs: int('SHUTDOWN_GRACE_MS', 25_000),
   },
 };
 

@@ -1,17 +1,22 @@
 /**
  * The server process: check the database, apply pending migrations, listen, start background work.
+ * SIGTERM or SIGINT drains it (see server/lifecycle.ts): readiness answers 503, requests in flight
+ * finish within SHUTDOWN_GRACE_MS, running jobs finish or go back to the queue, then it exits.
  */
 import { createApp } from './app';
 import { startBackgroundWork, stopBackgroundWork } from './background';
 import { DEFAULT_SESSION_SECRET, config } from './config';
 import { checkDatabase, sequelize } from './db';
-import { log } from './logger';
+import { armHardExit, drainHttpServer, installCrashHandlers } from './lifecycle';
+import { errorFields, log } from './logger';
 import { migrateUp } from './migrate';
+import { assertSafeConfiguration } from './startup-checks';
 
-/** How long requests in flight may take to finish after SIGTERM before their connections are closed. */
-const SHUTDOWN_GRACE_MS = 30_000;
+/** Time after the grace period for the last steps (closing the pool) before the hard exit. */
+const HARD_EXIT_MARGIN_MS = 5_000;
 
 async function main(): Promise<void> {
+  assertSafeConfiguration(config);
   await checkDatabase();
   await migrateUp();
   const app = createApp();
@@ -31,32 +36,29 @@ async function main(): Promise<void> {
   await startBackgroundWork();
 
   let stopping = false;
-  const stop = (signal: string) => {
+  const stop = (reason: string, exitCode: number) => {
     if (stopping) return;
     stopping = true;
-    log.info(`${signal} received, shutting down after the requests in flight`);
-    // Stop accepting connections; requests in flight (an upload's last part included) finish, up to the grace.
-    const drained = new Promise<void>((resolve) => server.close(() => resolve()));
-    const idle = setInterval(() => server.closeIdleConnections(), 200);
-    const grace = setTimeout(() => {
-      log.warn(`requests still running after ${SHUTDOWN_GRACE_MS / 1000} s: closing their connections`);
-      server.closeAllConnections();
-    }, SHUTDOWN_GRACE_MS);
-    server.closeIdleConnections();
-    Promise.all([
-      drained,
-      stopBackgroundWork().catch((err: unknown) => log.error('background work did not stop cleanly', { stack: err instanceof Error ? err.stack : String(err) })),
-    ]).finally(() => {
-      clearInterval(idle);
-      clearTimeout(grace);
-      sequelize.close().finally(() => process.exit(0));
-    });
+    const graceMs = config.shutdown.graceMs;
+    log.info(`${reason} received, draining (grace ${graceMs} ms)`);
+    armHardExit(graceMs + HARD_EXIT_MARGIN_MS, 'Shutdown');
+    Promise.allSettled([drainHttpServer(server, graceMs), stopBackgroundWork(graceMs)])
+      .then((results) => {
+        for (const result of results) if (result.status === 'rejected') log.error('A shutdown step failed', errorFields(result.reason));
+        return sequelize.close();
+      })
+      .catch((err: unknown) => log.error('Closing the database pool failed', errorFields(err)))
+      .finally(() => {
+        log.info('Stopped');
+        process.exit(exitCode);
+      });
   };
-  process.on('SIGINT', () => stop('SIGINT'));
-  process.on('SIGTERM', () => stop('SIGTERM'));
+  process.on('SIGINT', () => stop('SIGINT', 0));
+  process.on('SIGTERM', () => stop('SIGTERM', 0));
+  installCrashHandlers(stop);
 }
 
 main().catch((err: unknown) => {
-  log.error(err instanceof Error ? err.message : String(err));
+  log.error(err instanceof Error ? err.message : String(err), errorFields(err));
   process.exit(1);
 });

@@ -179,6 +179,12 @@ ${hidden}
 
 /** Starts the fake on 127.0.0.1:port; resolves once it listens. */
 export function startOAuthFake(options: OAuthFakeOptions, port: number, host = '127.0.0.1'): Promise<Server> {
+  if (!['127.0.0.1', '::1', 'localhost'].includes(host)) {
+    return Promise.reject(new Error(`The OAuth stand-in serves only on loopback (asked for ${host}). Use 127.0.0.1.`));
+  }
+  if (process.env.NODE_ENV === 'production') {
+    return Promise.reject(new Error('The OAuth stand-in never runs with NODE_ENV=production. Configure the real provider (GOOGLE_* in .env.example).'));
+  }
   return new Promise((resolve, reject) => {
     const server = createOAuthFake(options).listen(port, host);
     server.once('listening', () => resolve(server));

@@ -12,6 +12,7 @@ import { startPaymentFake } from './payment';
 import { startMailSink } from './smtp';
 
 async function main(): Promise<void> {
+  if (config.isProduction) throw new Error('The local stand-ins never run with NODE_ENV=production. Run them in development only.');
   const servers: Server[] = [];
   const closers: (() => Promise<void>)[] = [];
 

@@ -25,27 +25,36 @@ function ipAndEmail(req: Request): string {
   return `${ipOf(req)}|${email}`;
 }
 
-/**
- * Failed sign-ins per IP address and e-mail: successful ones do not count, so a coach who types the
- * password right is never locked out by earlier typos beyond the window.
- */
-export function signinLimiter({ windowMs, max }: LimitOptions): RequestHandler {
+/** A limit of failed sign-ins (successful ones do not count) under `key`, refused with `what`'s message. */
+function failedSigninLimiter({ windowMs, max }: LimitOptions, key: (req: Request) => string, what: string): RequestHandler {
   return rateLimit({
     windowMs,
     limit: max,
     skipSuccessfulRequests: true,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
-    keyGenerator: ipAndEmail,
+    keyGenerator: key,
     handler: (_req, _res, next) => {
-      next(
-        new ApiError(
-          'RATE_LIMITED',
-          `Too many sign-in attempts for this e-mail. Wait ${minutes(windowMs)} and try again, or ask a club admin for help.`,
-        ),
-      );
+      next(new ApiError('RATE_LIMITED', `${what} Wait ${minutes(windowMs)} and try again, or ask a club admin for help.`));
     },
   });
+}
+
+/**
+ * Failed sign-ins per IP address and e-mail: successful ones do not count, so a coach who types the
+ * password right is never locked out by earlier typos beyond the window.
+ */
+export function signinLimiter(options: LimitOptions): RequestHandler {
+  return failedSigninLimiter(options, ipAndEmail, 'Too many sign-in attempts for this e-mail.');
+}
+
+/**
+ * Failed sign-ins per IP address across every e-mail, beside the per-e-mail limit: trying a few passwords
+ * on many accounts from one address (password spraying) is capped as trying many on one account is.
+ * Successful sign-ins do not count, so a club signing in from behind one address is not locked out.
+ */
+export function signinAddressLimiter(options: LimitOptions): RequestHandler {
+  return failedSigninLimiter(options, ipOf, 'Too many failed sign-ins from this address.');
 }
 
 /** Sign-ups per IP address. */

@@ -6,8 +6,10 @@
  */
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
+import { timedOut } from '../lifecycle';
 import { log } from '../logger';
 import type { Job } from '../models';
+import { BackOff } from './backoff';
 import { claimNext, completeJob, failJob, releaseJob, renewLease } from './queue';
 import { jobSettings } from './settings';
 import { JobFailure, type JobHandler } from './types';
@@ -43,6 +45,7 @@ export class JobWorker {
   private loops: Promise<void>[] = [];
   private wake: (() => void) | null = null;
   private readonly active = new Map<number, AbortController>();
+  private readonly backOff: BackOff;
 
   constructor(options: WorkerOptions) {
     this.handlers = new Map(options.handlers.map((h) => [h.type, h]));
@@ -51,6 +54,7 @@ export class JobWorker {
     this.pollMs = options.pollMs ?? jobSettings.pollMs;
     this.stopGraceMs = options.stopGraceMs ?? jobSettings.stopGraceMs;
     this.id = `${options.name ?? 'worker'}@${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`;
+    this.backOff = new BackOff(this.pollMs, this.id);
   }
 
   /** Starts claiming in the background. */
@@ -65,25 +69,23 @@ export class JobWorker {
    * Stops claiming, lets running jobs finish for up to the grace period, then aborts them and hands them
    * back to the queue (after their cleanup) so another worker starts them afresh.
    */
-  async stop(): Promise<void> {
+  async stop(graceMs?: number): Promise<void> {
     if (!this.running) return;
+    const grace = Math.min(this.stopGraceMs, graceMs ?? this.stopGraceMs);
     this.running = false;
     this.wake?.();
     const done = Promise.all(this.loops);
-    let timer: NodeJS.Timeout | undefined;
-    const timedOut = await Promise.race([
-      done.then(() => false),
-      new Promise<boolean>((resolve) => {
-        timer = setTimeout(() => resolve(true), this.stopGraceMs);
-      }),
-    ]);
-    clearTimeout(timer);
-    if (timedOut) {
+    if (await timedOut(done, grace)) {
       for (const controller of this.active.values()) controller.abort(new WorkerStopping());
       await done;
     }
     this.loops = [];
     log.info('Job worker stopped', { worker: this.id });
+  }
+
+  /** True while the worker runs and its last claim reached the database (what the heartbeat reports). */
+  healthy(): boolean {
+    return this.running && this.backOff.failuresInRow === 0;
   }
 
   /** Claims and runs one job if any is claimable; true when one ran. For tests and scripts. */
@@ -104,12 +106,14 @@ export class JobWorker {
   private async loop(): Promise<void> {
     while (this.running) {
       let ran = false;
+      let pause = this.pollMs;
       try {
         ran = await this.runOnce();
+        this.backOff.succeeded();
       } catch (err) {
-        log.error('Job worker could not claim a job', { worker: this.id, error: (err as Error).message, stack: (err as Error).stack });
+        pause = this.backOff.failed(err);
       }
-      if (!ran && this.running) await this.sleep(this.pollMs);
+      if (!ran && this.running) await this.sleep(pause);
     }
   }
 

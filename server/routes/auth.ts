@@ -11,13 +11,15 @@ import { config } from '../config';
 import { log } from '../logger';
 import { csrfToken } from '../http/csrf';
 import { ApiError } from '../http/errors';
-import { signinLimiter, signupLimiter, type LimitOptions } from '../http/rate-limit';
+import { signinAddressLimiter, signinLimiter, signupLimiter, type LimitOptions } from '../http/rate-limit';
 import { publicRoute, requireUser } from '../middleware/authorize';
 import { validate } from '../middleware/validate';
 import { loadMe, signUp } from '../services/auth';
 
 export interface AuthRouterOptions {
   signinLimit: LimitOptions;
+  /** Failed sign-ins per IP address across all e-mails. */
+  signinAddressLimit: LimitOptions;
   signupLimit: LimitOptions;
 }
 
@@ -54,7 +56,7 @@ export function authRouter(options: AuthRouterOptions): Router {
     res.status(201).json({ data: await meOrThrow(user.id) });
   });
 
-  router.post('/auth/signin', publicRoute, validate(signInSchema), signinLimiter(options.signinLimit), async (req, res) => {
+  router.post('/auth/signin', publicRoute, validate(signInSchema), signinAddressLimiter(options.signinAddressLimit), signinLimiter(options.signinLimit), async (req, res) => {
     const user = await authenticateLocal(req, res);
     if (!user) {
       throw new ApiError('INVALID_CREDENTIALS', 'That e-mail and password do not match an account. Check both and try again.');

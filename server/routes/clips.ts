@@ -15,11 +15,14 @@ import { acceptUpload, deleteClip, frameImage, getClip, listClips, listSessionCl
 import { assertClubCanRecord } from '../services/subscriptions';
 import { findVisibleSession } from '../services/visibility';
 import { storage } from '../storage';
+import { uploadWorkPurpose } from '../storage/work-names';
 
 /** Most files in one frame-set upload. */
 const MAX_FRAMES = MAX_TRACK_POINTS;
 /** Room for multipart boundaries and text fields when judging the declared length against the limit. */
 const MULTIPART_OVERHEAD_BYTES = 1024 * 1024;
+
+const CONTROL_CHARACTER = /[\u0000-\u001f\u007f]/;
 
 /** Runs multer into a fresh work folder in storage (streamed to disk, never held in memory). */
 async function receive(req: Request, res: Response, maxBytes: number): Promise<{ workDir: string; files: Record<string, UploadedFile[]> }> {
@@ -28,7 +31,7 @@ async function receive(req: Request, res: Response, maxBytes: number): Promise<{
     res.setHeader('Connection', 'close');
     throw tooLarge(maxBytes);
   }
-  const workDir = await storage().workDir('upload');
+  const workDir = await storage().workDir(uploadWorkPurpose());
   let n = 0;
   const upload = multer({
     storage: multer.diskStorage({ destination: workDir, filename: (_req, _file, cb) => cb(null, `part-${n++}`) }),
@@ -61,6 +64,14 @@ async function receive(req: Request, res: Response, maxBytes: number): Promise<{
   const files: Record<string, UploadedFile[]> = {};
   for (const [field, list] of Object.entries(raw)) {
     files[field] = list.map((f) => ({ path: f.path, originalName: Buffer.from(f.originalname, 'latin1').toString('utf8'), sizeBytes: f.size }));
+  }
+  // A control character (NUL above all) in a file name is never a real name and breaks paths and logs.
+  const badName = Object.values(files).flat().find((f) => CONTROL_CHARACTER.test(f.originalName));
+  if (badName) {
+    await rm(workDir, { recursive: true, force: true });
+    throw new ApiError('BAD_REQUEST', 'A file name holds a control character (such as NUL). Rename the file and upload it again.', {
+      file: 'Rename the file: letters, digits, spaces and punctuation only.',
+    });
   }
   return { workDir, files };
 }

@@ -3,9 +3,10 @@
  */
 import type { SignUpBody } from '../../shared/schemas/auth';
 import type { Me } from '../../shared/types/api';
-import { decoyHash, hashPassword, verifyPassword } from '../auth/passwords';
+import { decoyHash, hashPassword, needsRehash, verifyPassword } from '../auth/passwords';
 import { withTransaction } from '../db';
 import { ApiError } from '../http/errors';
+import { errorFields, log } from '../logger';
 import { AthleteProfile, Club, Membership, User } from '../models';
 import { startTrial } from './subscriptions';
 
@@ -51,7 +52,22 @@ export async function checkPassword(email: string, password: string): Promise<Se
     await verifyPassword(password, await decoyHash());
     return null;
   }
-  return (await verifyPassword(password, user.passwordHash)) ? toSessionUser(user) : null;
+  if (!(await verifyPassword(password, user.passwordHash))) return null;
+  if (needsRehash(user.passwordHash)) await upgradeHash(user, password);
+  return toSessionUser(user);
+}
+
+/**
+ * Stores a hash of the current cost for a password that just verified against an older one. Only when the
+ * stored hash is still the one verified (a reset at the same moment wins); a failure never stops the sign-in.
+ */
+async function upgradeHash(user: User, password: string): Promise<void> {
+  try {
+    const fresh = await hashPassword(password);
+    await User.update({ passwordHash: fresh }, { where: { id: user.id, passwordHash: user.passwordHash } });
+  } catch (err) {
+    log.warn('Upgrading a password hash failed; it is retried at the next sign-in', { userId: user.id, ...errorFields(err) });
+  }
 }
 
 export interface GoogleIdentity {

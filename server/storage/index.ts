@@ -46,6 +46,8 @@ export interface Storage {
    * file system as the work folders, so a finished upload moves out by a rename.
    */
   partialUploadsDir(): Promise<string>;
+  /** The local folder holding every `workDir()` (for the sweep of folders left by a killed process). */
+  workRoot(): string;
 }
 
 /** Refuses keys that could escape the storage root (absolute paths, `..`, backslashes, empty parts). */
@@ -162,8 +164,12 @@ export class LocalDiskStorage implements Storage {
     await rm(this.pathOf(prefix), { recursive: true, force: true });
   }
 
+  workRoot(): string {
+    return join(this.root, '.work');
+  }
+
   async workDir(purpose: string): Promise<string> {
-    const base = join(this.root, '.work');
+    const base = this.workRoot();
     await mkdir(base, { recursive: true });
     return mkdtemp(join(base, `${purpose.replace(/[^a-z0-9-]/gi, '-')}-`));
   }

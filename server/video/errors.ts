@@ -28,6 +28,8 @@ export const VIDEO_ERROR_CODES = {
   VIDEO_TOOL_MISSING: 'INTERNAL',
   /** A frame set with no frames, a bad capture rate or frames of different sizes or types. */
   FRAMES_INVALID: 'UNPROCESSABLE',
+  /** A frame of a set is larger than the server decodes (its header claims too many pixels). */
+  FRAME_TOO_LARGE: 'UNPROCESSABLE',
   /** A bad argument from the caller (start outside the frame, capture rate not positive…). */
   VIDEO_BAD_REQUEST: 'VALIDATION_FAILED',
   /** The output folder for extracted frames already holds files. */

@@ -11,7 +11,7 @@ import { randomBytes } from 'node:crypto';
 import { mkdir, readdir, rename, rm, rmdir, symlink } from 'node:fs/promises';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import { cancelledError, VideoError } from './errors';
-import { ffmpegPath, lastErrorLine, toolMissing } from './tools';
+import { ffmpegPath, lastErrorLine, toolCommand, toolMissing } from './tools';
 import type { ExtractedFrames, ExtractOptions, MediaProbe } from './types';
 
 export const FRAME_PATTERN = 'frame-%06d.jpg' as const;
@@ -175,11 +175,13 @@ export async function extractFrames(probe: MediaProbe, outDir: string, options: 
 /** Runs ffmpeg with `-progress pipe:1`, calling `onFrame` with each reported frame number. */
 function runFfmpeg(args: string[], signal: AbortSignal | undefined, onFrame: (frame: number) => void): Promise<{ code: number | null; stderr: string }> {
   return new Promise((resolvePromise, reject) => {
-    const child = spawn(ffmpegPath(), args, { stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(...toolCommand(ffmpegPath(), args), { stdio: ['ignore', 'pipe', 'pipe'] });
     const onAbort = (): void => {
       child.kill('SIGKILL');
     };
-    signal?.addEventListener('abort', onAbort, { once: true });
+    // Note: a signal aborted before the spawn never fires 'abort' again.
+    if (signal?.aborted) onAbort();
+    else signal?.addEventListener('abort', onAbort, { once: true });
     let stderr = '';
     let pending = '';
     child.stdout.setEncoding('utf8');

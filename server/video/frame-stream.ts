@@ -12,7 +12,7 @@ import { extname, join, resolve } from 'node:path';
 import { cancelledError, VideoError } from './errors';
 import { FRAME_PATTERN } from './extract';
 import { probeClip, probeFrameSet } from './probe';
-import { ffmpegPath, lastErrorLine, toolMissing } from './tools';
+import { ffmpegPath, lastErrorLine, toolCommand, toolMissing } from './tools';
 import type { ClipProbe, ExtractedFrames, FollowSource, FrameSetProbe } from './types';
 
 export interface GrayFrame {
@@ -158,7 +158,7 @@ export async function* grayFrames(
 ): AsyncGenerator<GrayFrame> {
   if (signal?.aborted) throw cancelledError('Following');
   const frameSize = width * height;
-  const child = spawn(ffmpegPath(), args, { stdio: ['ignore', 'pipe', 'pipe'] });
+  const child = spawn(...toolCommand(ffmpegPath(), args), { stdio: ['ignore', 'pipe', 'pipe'] });
   let stderr = '';
   child.stderr.setEncoding('utf8');
   child.stderr.on('data', (d: string) => {

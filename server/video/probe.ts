@@ -228,6 +228,22 @@ async function countPackets(path: string): Promise<number> {
   return n;
 }
 
+/** Largest side and pixel count of an uploaded frame (8K UHD is 7680×4320, about 33 million pixels). */
+export const MAX_FRAME_SIDE_PX = 8192;
+export const MAX_FRAME_PIXELS = 40_000_000;
+
+/** Decodes one still image with ffmpeg and refuses it when nothing comes out. */
+async function checkImageDecodes(path: string, format: 'jpeg' | 'png'): Promise<void> {
+  const res = await runTool(ffmpegPath(), ['-v', 'error', '-nostdin', '-i', path, '-frames:v', '1', '-f', 'framecrc', '-']);
+  const decoded = res.stdout.split('\n').some((l) => l.length > 0 && !l.startsWith('#'));
+  if (res.code === 0 && decoded) return;
+  throw new VideoError(
+    'VIDEO_NOT_MEDIA',
+    `"${basename(path)}" starts like a ${format.toUpperCase()} but cannot be decoded as one: the file is damaged or not an image. Export the frame again.`,
+    { file: path, ffmpeg: lastErrorLine(res.stderr) },
+  );
+}
+
 /** Decodes the first video frame: the only sure test that this ffmpeg can read the codec. */
 function decodeFirstFrame(path: string): Promise<RunResult> {
   return runTool(ffmpegPath(), ['-v', 'error', '-nostdin', '-i', path, '-map', '0:v:0', '-frames:v', '1', '-f', 'framecrc', '-']);
@@ -382,6 +398,17 @@ export async function probeFrameSet(paths: string[], captureFps: number): Promis
       );
     }
   }
+  // The same size for every frame, so checking the first caps them all; checked before any decoding, so a
+  // header that claims 60000 × 60000 never makes a decoder allocate for it.
+  if (first.width > MAX_FRAME_SIDE_PX || first.height > MAX_FRAME_SIDE_PX || first.width * first.height > MAX_FRAME_PIXELS) {
+    throw new VideoError(
+      'FRAME_TOO_LARGE',
+      `The frames are ${first.width}×${first.height} pixels; this server takes frames of at most ${MAX_FRAME_SIDE_PX} pixels a side and ${MAX_FRAME_PIXELS / 1e6} million pixels. Export them smaller and upload them again.`,
+      { size: [first.width, first.height], maxSide: MAX_FRAME_SIDE_PX, maxPixels: MAX_FRAME_PIXELS },
+    );
+  }
+  // A valid header can still front anything (a JPEG header followed by markup): decode the first and last frame.
+  for (const file of new Set([files[0]!, files[files.length - 1]!])) await checkImageDecodes(file, first.format);
   return {
     kind: 'frames',
     files,

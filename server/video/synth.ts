@@ -12,7 +12,7 @@ import { spawn } from 'node:child_process';
 import { copyFile, mkdir, readFile, rm, stat, truncate, writeFile } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
 import { mulberry32 } from '../../shared/physics';
-import { ffmpegPath, lastErrorLine, runTool } from './tools';
+import { ffmpegPath, lastErrorLine, runTool, toolCommand } from './tools';
 
 /** Standard gravity, m/s² (3rd CGPM, 1901). */
 const G = 9.80665;
@@ -386,7 +386,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   const encodedPath = rotation === 0 ? videoPath : `${videoPath}.unrotated.mp4`;
   if (rotation !== 0) args.push('-vf', turnBack[rotation]);
   args.push('-movflags', '+faststart', encodedPath);
-  const child = spawn(ffmpegPath(), args, { stdio: ['pipe', 'ignore', 'pipe'] });
+  const child = spawn(...toolCommand(ffmpegPath(), args), { stdio: ['pipe', 'ignore', 'pipe'] });
   let stderr = '';
   child.stderr.setEncoding('utf8');
   child.stderr.on('data', (d: string) => {

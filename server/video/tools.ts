@@ -5,6 +5,7 @@
  * `/usr/bin/ffprobe`). They are read at call time, so a test or a worker may set them late.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
+import { accessSync, constants } from 'node:fs';
 import ffmpeg from 'fluent-ffmpeg';
 import { VideoError } from './errors';
 
@@ -20,6 +21,33 @@ export function ffprobePath(): string {
 export function configureFluentFfmpeg(): void {
   ffmpeg.setFfmpegPath(ffmpegPath());
   ffmpeg.setFfprobePath(ffprobePath());
+}
+
+/** util-linux's setpriv, present on Debian (util-linux is an essential package) and in the runtime image. */
+const SETPRIV = '/usr/bin/setpriv';
+let setprivUsable: boolean | undefined;
+
+function executable(path: string): boolean {
+  try {
+    accessSync(path, constants.X_OK);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * The command line that starts a tool so that it dies with this process: on Linux through
+ * `setpriv --pdeathsig KILL`, which asks the kernel (prctl PR_SET_PDEATHSIG) to send SIGKILL to the
+ * tool when its parent dies, even by SIGKILL where no exit handler of ours runs. Without setpriv, or
+ * when the tool is missing (so that spawn still fails with ENOENT and the usual advice), the tool runs
+ * directly. `ARCWRIGHT_TOOL_PDEATHSIG=0` turns the wrapper off.
+ * Use as `spawn(...toolCommand(ffmpegPath(), args), options)`.
+ */
+export function toolCommand(path: string, args: readonly string[]): [string, string[]] {
+  setprivUsable ??= process.platform === 'linux' && process.env.ARCWRIGHT_TOOL_PDEATHSIG !== '0' && executable(SETPRIV);
+  if (!setprivUsable || !executable(path)) return [path, [...args]];
+  return [SETPRIV, ['--pdeathsig', 'KILL', '--', path, ...args]];
 }
 
 export function toolMissing(tool: string, path: string): VideoError {
@@ -58,13 +86,15 @@ export function runTool(
 ): Promise<RunResult> {
   const maxStderr = opts.maxStderr ?? 64 * 1024;
   return new Promise((resolvePromise, reject) => {
-    const child = spawn(path, args, { stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(...toolCommand(path, args), { stdio: ['ignore', 'pipe', 'pipe'] });
     let stdout = '';
     let stderr = '';
     const onAbort = (): void => {
       child.kill('SIGKILL');
     };
-    opts.signal?.addEventListener('abort', onAbort, { once: true });
+    // Note: a signal aborted before the spawn never fires 'abort' again.
+    if (opts.signal?.aborted) onAbort();
+    else opts.signal?.addEventListener('abort', onAbort, { once: true });
     child.stdout!.setEncoding('utf8');
     child.stderr!.setEncoding('utf8');
     child.stdout!.on('data', (d: string) => {

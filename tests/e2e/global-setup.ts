@@ -127,7 +127,8 @@ export default async function setup(project: TestProject): Promise<() => Promise
   // The children are ordinary servers, not Vitest workers: drop Vitest's variables so they use DB_NAME.
   const env: NodeJS.ProcessEnv = Object.fromEntries(Object.entries(process.env).filter(([key]) => !key.startsWith('VITEST')));
   Object.assign(env, {
-    NODE_ENV: 'production',
+    // The local stand-ins run beside it, which a production process refuses (server/startup-checks.ts).
+    NODE_ENV: 'development',
     HOST,
     PORT: String(appPort),
     DB_HOST: dbSettings.host,
@@ -148,6 +149,8 @@ export default async function setup(project: TestProject): Promise<() => Promise
     GOOGLE_AUTH_URL: `${oauthBase}/authorize`,
     GOOGLE_TOKEN_URL: `${oauthBase}/token`,
     GOOGLE_USERINFO_URL: `${oauthBase}/userinfo`,
+    // A cheaper scrypt than the production default keeps the many sign-ins of the browser tests quick.
+    PASSWORD_SCRYPT_LOG_N: process.env.PASSWORD_SCRYPT_LOG_N ?? '14',
     GOOGLE_CALLBACK_URL: `${baseUrl}/api/v1/auth/google/callback`,
     PAYMENT_FAKE_PORT: String(paymentPort),
     PAYMENT_API_HOST: HOST,

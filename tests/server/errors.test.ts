@@ -2,9 +2,10 @@ import { mkdtempSync, mkdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import request from 'supertest';
-import { afterEach, describe, expect, it, vi } from 'vitest';
+import { afterEach, describe, expect, it, onTestFinished, vi } from 'vitest';
 import { ApiError } from '../../server/http/errors';
 import { ApiClient, testApp } from '../support/app';
+import { captureLogs } from '../support/logs';
 
 describe('errors: one JSON shape', () => {
   afterEach(() => {
@@ -47,7 +48,8 @@ describe('errors: one JSON shape', () => {
   });
 
   it('answers 500 INTERNAL with a reference and no stack when a route throws', async () => {
-    const logged = vi.spyOn(console, 'error').mockImplementation(() => {});
+    const logs = captureLogs('error');
+    onTestFinished(() => logs.restore());
     const app = testApp({
       extraApiRoutes: (api) => {
         api.get('/test-only/boom', () => {
@@ -66,10 +68,10 @@ describe('errors: one JSON shape', () => {
       },
     });
     expect(JSON.stringify(res.body)).not.toMatch(/secret internal detail|at .*\.ts|Error:/);
-    // The stack goes to the server log, tagged with the same request id.
-    const line = logged.mock.calls.map((c) => String(c[0])).join('\n');
-    expect(line).toContain(requestId);
-    expect(line).toContain('secret internal detail');
+    // The stack goes to the server log, in one line's field, tagged with the same request id.
+    const failure = logs.lines.find((l) => l.requestId === requestId && typeof l.stack === 'string');
+    expect(failure?.stack).toContain('secret internal detail');
+    expect(logs.raw.every((line) => !line.includes('\n'))).toBe(true);
   });
 
   it('answers with the ApiError code and its status when a route throws one', async () => {
@@ -102,7 +104,7 @@ describe('health and security headers', () => {
   it('reports the app and the database as ok', async () => {
     const res = await request(testApp()).get('/api/v1/health');
     expect(res.status).toBe(200);
-    expect(res.body).toEqual({ data: { status: 'ok', db: 'ok' } });
+    expect(res.body).toEqual({ data: { status: 'ok', db: 'ok', storage: 'ok', ffmpeg: 'ok' } });
   });
 
   it('sends a CSP without external origins except the sign-in provider for form posts', async () => {

@@ -6,6 +6,7 @@ import { rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import { Clip } from '../../models';
 import { clipKeys, storage } from '../../storage';
+import { jobWorkPurpose } from '../../storage/work-names';
 import { extractFrames, probeClip, probeFrameSet, type MediaProbe } from '../../video';
 import { JobFailure, type JobHandler } from '../types';
 
@@ -46,7 +47,7 @@ export const clipProcessHandler: JobHandler = {
     // A previous attempt whose worker died may have left frames: start clean.
     await storage().removePrefix(framesKey);
     const source = await localSource(clip);
-    const work = await storage().workDir(`clip-${clip.id}`);
+    const work = await storage().workDir(jobWorkPurpose(job));
     try {
       const probe: MediaProbe = clip.kind === 'video' ? await probeClip(source.paths[0]!) : await probeFrameSet(source.paths, clip.captureFps);
       progress(2);
