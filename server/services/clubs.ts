@@ -2,7 +2,8 @@
  * Club profile, Overview counts (members and profiles here, the other resources from their services),
  * members and their roles.
  */
-import { fn, col, type Transaction } from 'sequelize';
+import { fn, col, Op, type Transaction } from 'sequelize';
+import { pageOffset, type PageMeta, type PaginationQuery } from '../../shared/schemas/pagination';
 import type { ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary } from '../../shared/schemas/club';
 import type { Role } from '../../shared/types/api';
 import { withTransaction } from '../db';
@@ -82,13 +83,15 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
   };
 }
 
-async function memberSummaries(clubId: number, where: { id?: number } = {}): Promise<MemberSummary[]> {
+async function memberSummaries(clubId: number, where: { id?: number } = {}, page?: PaginationQuery): Promise<MemberSummary[]> {
   const memberships = await Membership.findAll({
     where: { clubId, ...where },
     include: [{ model: User, as: 'user', attributes: ['id', 'email', 'displayName'] }],
-    order: [['id', 'ASC']],
+    order: page ? [[{ model: User, as: 'user' }, 'displayName', 'ASC'], ['id', 'ASC']] : [['id', 'ASC']],
+    ...(page ? { limit: page.pageSize, offset: pageOffset(page) } : {}),
   });
-  const profiles = await AthleteProfile.findAll({ where: { clubId }, attributes: ['id', 'userId'] });
+  const userIds = memberships.map((m) => m.userId);
+  const profiles = userIds.length === 0 ? [] : await AthleteProfile.findAll({ where: { clubId, userId: { [Op.in]: userIds } }, attributes: ['id', 'userId'] });
   const profileByUser = new Map(profiles.filter((p) => p.userId !== null).map((p) => [p.userId as number, p.id]));
   return memberships.map((m) => ({
     id: m.id,
@@ -100,9 +103,10 @@ async function memberSummaries(clubId: number, where: { id?: number } = {}): Pro
   }));
 }
 
-export async function listMembers(clubId: number): Promise<MemberSummary[]> {
-  const members = await memberSummaries(clubId);
-  return members.sort((a, b) => a.displayName.localeCompare(b.displayName) || a.id - b.id);
+/** One page of the club's members by name, and how many there are in all. */
+export async function listMembers(clubId: number, page: PaginationQuery): Promise<{ data: MemberSummary[]; meta: PageMeta }> {
+  const [total, data] = await Promise.all([Membership.count({ where: { clubId } }), memberSummaries(clubId, {}, page)]);
+  return { data, meta: { page: page.page, pageSize: page.pageSize, total } };
 }
 
 /** Refuses to demote or remove the club's only admin (the club would have nobody to run it). */

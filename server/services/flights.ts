@@ -12,9 +12,12 @@ import {
   type FlightAction as FlightActionDto,
   type FlightDetail,
   type FlightInput,
+  type FlightListQuery,
+  type FlightSort,
   type FlightPatch,
   type FlightStatus,
 } from '../../shared/schemas/flight';
+import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
 import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
@@ -168,24 +171,100 @@ export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
   });
 }
 
+/** Filters of the flights list (every one optional); the paged list adds page, size and order. */
 export interface FlightQuery {
   sessionId?: number;
   clipId?: number;
   athleteId?: number;
   status?: FlightStatus;
+  action?: string;
+  ballId?: string;
 }
 
-export async function listFlights(club: ClubContext, query: FlightQuery): Promise<FlightDto[]> {
-  const where: Record<string | symbol, unknown> = { ...flightScope(club) };
-  if (query.clipId) where.clipId = query.clipId;
-  if (query.athleteId && club.role !== 'athlete') where.athleteProfileId = query.athleteId;
-  if (query.athleteId && club.role === 'athlete' && query.athleteId !== club.athleteProfileId) return [];
-  if (query.status) where.status = query.status;
-  if (query.sessionId) {
-    const clips = await Clip.findAll({ where: { clubId: club.id, sessionId: query.sessionId }, attributes: ['id'] });
-    where.clipId = query.clipId ? (clips.some((c) => c.id === query.clipId) ? query.clipId : 0) : { [Op.in]: clips.map((c) => c.id) };
+/** The latest fit of the flight `f`, joined for the sorts by a fit's figure (index fits_flight_history). */
+const LATEST_FIT_JOIN = 'LEFT JOIN fits lf ON lf.id = (SELECT MAX(x.id) FROM fits x WHERE x.flight_id = f.id)';
+
+/** ORDER BY expression per sort, with the joins it needs; NULLs (no fit yet) go last either way. */
+const SORT_SQL: Record<FlightSort, { expr: string; join: string }> = {
+  date: { expr: 's.date', join: '' },
+  athlete: { expr: 'a.display_name', join: 'JOIN athlete_profiles a ON a.id = f.athlete_profile_id' },
+  action: { expr: 'f.action', join: '' },
+  ball: { expr: 'f.ball_id', join: '' },
+  status: { expr: 'f.status', join: '' },
+  launchSpeed: { expr: 'lf.launch_speed_mps', join: LATEST_FIT_JOIN },
+  launchAngle: { expr: 'lf.launch_angle_deg', join: LATEST_FIT_JOIN },
+  carry: { expr: 'lf.carry_m', join: LATEST_FIT_JOIN },
+  standardCarry: { expr: "JSON_VALUE(lf.result, '$.standardCarry') + 0", join: LATEST_FIT_JOIN },
+};
+
+/** WHERE clause and replacements of the list's filters, on `flights f JOIN clips c`. */
+function flightFilterSql(club: ClubContext, query: FlightQuery): { where: string; replacements: Record<string, unknown> } | null {
+  const scope = flightScope(club);
+  const parts = ['f.club_id = :clubId'];
+  const replacements: Record<string, unknown> = { clubId: scope.clubId };
+  if (scope.athleteProfileId !== undefined) {
+    if (query.athleteId && query.athleteId !== scope.athleteProfileId) return null;
+    parts.push('f.athlete_profile_id = :athleteId');
+    replacements.athleteId = scope.athleteProfileId;
+  } else if (query.athleteId) {
+    parts.push('f.athlete_profile_id = :athleteId');
+    replacements.athleteId = query.athleteId;
   }
-  const flights = await Flight.findAll({ where, order: [['id', 'ASC']] });
+  const equalities: [column: string, name: keyof FlightQuery][] = [
+    ['f.clip_id', 'clipId'],
+    ['c.session_id', 'sessionId'],
+    ['f.status', 'status'],
+    ['f.action', 'action'],
+    ['f.ball_id', 'ballId'],
+  ];
+  for (const [column, name] of equalities) {
+    if (query[name] === undefined) continue;
+    parts.push(`${column} = :${name}`);
+    replacements[name] = query[name];
+  }
+  return { where: parts.join(' AND '), replacements };
+}
+
+/**
+ * One page of the flights the caller may see that pass the filters, in the asked order (ties by id), and
+ * the number of all that pass. Filters, order and paging run in the database.
+ */
+export async function listFlightsPage(club: ClubContext, query: FlightListQuery): Promise<{ data: FlightDto[]; meta: PageMeta }> {
+  const meta = { page: query.page, pageSize: query.pageSize, total: 0 };
+  const filter = flightFilterSql(club, query);
+  if (!filter) return { data: [], meta };
+  const sort = SORT_SQL[query.sort];
+  const dir = query.order === 'asc' ? 'ASC' : 'DESC';
+  const base = 'FROM flights f JOIN clips c ON c.id = f.clip_id JOIN sessions s ON s.id = c.session_id';
+  const [countRows, idRows] = await Promise.all([
+    sequelize.query<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ' JOIN clips c ON c.id = f.clip_id' : ''} WHERE ${filter.where}`, {
+      type: QueryTypes.SELECT,
+      replacements: filter.replacements,
+    }),
+    sequelize.query<{ id: number }>(
+      `SELECT f.id ${base} ${sort.join} WHERE ${filter.where} ORDER BY (${sort.expr}) IS NULL, ${sort.expr} ${dir}, f.id ${dir} LIMIT :limit OFFSET :offset`,
+      { type: QueryTypes.SELECT, replacements: { ...filter.replacements, limit: query.pageSize, offset: pageOffset(query) } },
+    ),
+  ]);
+  meta.total = Number(countRows[0]?.n ?? 0);
+  const ids = idRows.map((r) => Number(r.id));
+  if (ids.length === 0) return { data: [], meta };
+  const flights = await Flight.findAll({ where: { id: { [Op.in]: ids } } });
+  const byId = new Map(flights.map((f) => [f.id, f]));
+  const ordered = ids.map((id) => byId.get(id)).filter((f): f is Flight => f !== undefined);
+  return { data: await toFlightDtos(ordered), meta };
+}
+
+/** Every flight the caller may see that passes the filters, oldest first (for a clip's own list and the services). */
+export async function listFlights(club: ClubContext, query: FlightQuery): Promise<FlightDto[]> {
+  const filter = flightFilterSql(club, query);
+  if (!filter) return [];
+  const rows = await sequelize.query<{ id: number }>(
+    `SELECT f.id FROM flights f JOIN clips c ON c.id = f.clip_id WHERE ${filter.where} ORDER BY f.id ASC`,
+    { type: QueryTypes.SELECT, replacements: filter.replacements },
+  );
+  if (rows.length === 0) return [];
+  const flights = await Flight.findAll({ where: { id: { [Op.in]: rows.map((r) => Number(r.id)) } }, order: [['id', 'ASC']] });
   return toFlightDtos(flights);
 }
 
