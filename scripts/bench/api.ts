@@ -303,7 +303,9 @@ export async function run(): Promise<void> {
     ];
     const rows: string[][] = [];
     let health: Figures | null = null;
-    for (const c of cases) {
+    // BENCH_ONLY=auth narrows a run to the requests whose name holds the word (GET /health always runs: the others compare with it).
+    const only = process.env.BENCH_ONLY?.toLowerCase();
+    for (const c of cases.filter((c, i) => i === 0 || !only || c.name.toLowerCase().includes(only))) {
       const f = await load(c.url, c.auth ? cookie : null);
       health ??= f;
       rows.push([c.name, f.rps.toFixed(0), f.p50.toFixed(1), f.p95.toFixed(1), f.p99.toFixed(1), String(f.errors), c.target(f, health)]);
