@@ -186,6 +186,9 @@ async function seedClub(): Promise<{ clubId: number; athleteId: number; flightId
     await insertRows(tx, 'track_points', ['flight_id', 'frame', 'x_px', 'y_px', 'radius_px', 'source', 'confidence'], points, 5000);
     await insertRows(tx, 'fits', ['club_id', 'flight_id', 'job_id', 'calibration_id', 'model', 'engine_version', 'status', 'launch_speed_mps', 'launch_angle_deg',
       'carry_m', 'warnings', 'params', 'result', 'created_at', 'updated_at'], fits);
+    // What the Fit model's create hook keeps on each flight (one fit per flight here).
+    await tx(`UPDATE flights f JOIN fits x ON x.flight_id = f.id SET f.latest_fit_id = x.id, f.fit_launch_speed_mps = x.launch_speed_mps,
+      f.fit_launch_angle_deg = x.launch_angle_deg, f.fit_carry_m = x.carry_m, f.fit_standard_carry_m = JSON_VALUE(x.result, '$.standardCarry') WHERE f.club_id = ?`, [clubId]);
   });
   await sql(`ANALYZE TABLE flights, fits, track_points, clips, sessions, athlete_profiles`);
   const seeded = await ids();

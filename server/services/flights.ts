@@ -181,20 +181,35 @@ export interface FlightQuery {
   ballId?: string;
 }
 
-/** The latest fit of the flight `f`, joined for the sorts by a fit's figure (index fits_flight_history). */
-const LATEST_FIT_JOIN = 'LEFT JOIN fits lf ON lf.id = (SELECT MAX(x.id) FROM fits x WHERE x.flight_id = f.id)';
+interface SortSql {
+  expr: string;
+  /** The joins the expression needs beyond `flights f`. */
+  joins: ('clip' | 'session' | 'athlete')[];
+  /** True where flights without a fit have no value: they go last in either direction. */
+  nullable: boolean;
+}
 
-/** ORDER BY expression per sort, with the joins it needs; NULLs (no fit yet) go last either way. */
-const SORT_SQL: Record<FlightSort, { expr: string; join: string }> = {
-  date: { expr: 's.date', join: '' },
-  athlete: { expr: 'a.display_name', join: 'JOIN athlete_profiles a ON a.id = f.athlete_profile_id' },
-  action: { expr: 'f.action', join: '' },
-  ball: { expr: 'f.ball_id', join: '' },
-  status: { expr: 'f.status', join: '' },
-  launchSpeed: { expr: 'lf.launch_speed_mps', join: LATEST_FIT_JOIN },
-  launchAngle: { expr: 'lf.launch_angle_deg', join: LATEST_FIT_JOIN },
-  carry: { expr: 'lf.carry_m', join: LATEST_FIT_JOIN },
-  standardCarry: { expr: "JSON_VALUE(lf.result, '$.standardCarry') + 0", join: LATEST_FIT_JOIN },
+const JOIN_SQL = {
+  clip: 'JOIN clips c ON c.id = f.clip_id',
+  session: 'JOIN sessions s ON s.id = c.session_id',
+  athlete: 'JOIN athlete_profiles a ON a.id = f.athlete_profile_id',
+} as const;
+
+/**
+ * ORDER BY expression per sort. The fit figures are the latest fit's, copied onto the flight (migration 0320)
+ * with an index each, so a sorted page reads only its rows.
+ */
+const SORT_SQL: Record<FlightSort, SortSql> = {
+  recent: { expr: 'f.id', joins: [], nullable: false },
+  date: { expr: 's.date', joins: ['clip', 'session'], nullable: false },
+  athlete: { expr: 'a.display_name', joins: ['athlete'], nullable: false },
+  action: { expr: 'f.action', joins: [], nullable: false },
+  ball: { expr: 'f.ball_id', joins: [], nullable: false },
+  status: { expr: 'f.status', joins: [], nullable: false },
+  launchSpeed: { expr: 'f.fit_launch_speed_mps', joins: [], nullable: true },
+  launchAngle: { expr: 'f.fit_launch_angle_deg', joins: [], nullable: true },
+  carry: { expr: 'f.fit_carry_m', joins: [], nullable: true },
+  standardCarry: { expr: 'f.fit_standard_carry_m', joins: [], nullable: true },
 };
 
 /** WHERE clause and replacements of the list's filters, on `flights f JOIN clips c`. */
@@ -234,20 +249,33 @@ export async function listFlightsPage(club: ClubContext, query: FlightListQuery)
   const filter = flightFilterSql(club, query);
   if (!filter) return { data: [], meta };
   const sort = SORT_SQL[query.sort];
-  const dir = query.order === 'asc' ? 'ASC' : 'DESC';
-  const base = 'FROM flights f JOIN clips c ON c.id = f.clip_id JOIN sessions s ON s.id = c.session_id';
-  const [countRows, idRows] = await Promise.all([
-    sequelize.query<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ' JOIN clips c ON c.id = f.clip_id' : ''} WHERE ${filter.where}`, {
-      type: QueryTypes.SELECT,
-      replacements: filter.replacements,
-    }),
-    sequelize.query<{ id: number }>(
-      `SELECT f.id ${base} ${sort.join} WHERE ${filter.where} ORDER BY (${sort.expr}) IS NULL, ${sort.expr} ${dir}, f.id ${dir} LIMIT :limit OFFSET :offset`,
-      { type: QueryTypes.SELECT, replacements: { ...filter.replacements, limit: query.pageSize, offset: pageOffset(query) } },
-    ),
-  ]);
-  meta.total = Number(countRows[0]?.n ?? 0);
-  const ids = idRows.map((r) => Number(r.id));
+  const joins = new Set(sort.joins);
+  if (query.sessionId) joins.add('clip');
+  const from = ['FROM flights f', ...(['clip', 'session', 'athlete'] as const).filter((j) => joins.has(j)).map((j) => JOIN_SQL[j])].join(' ');
+  const select = <T extends object>(sql: string, extra: Record<string, unknown> = {}) =>
+    sequelize.query<T>(sql, { type: QueryTypes.SELECT, replacements: { ...filter.replacements, ...extra } });
+  const idsOf = async (where: string, order: string, limit: number, offset: number) =>
+    (await select<{ id: number }>(`SELECT f.id ${from} WHERE ${filter.where}${where} ORDER BY ${order} LIMIT :limit OFFSET :offset`, { limit, offset })).map((r) =>
+      Number(r.id),
+    );
+  const offset = pageOffset(query);
+  let ids: number[];
+  if (sort.nullable && query.order === 'asc') {
+    // Note: MariaDB sorts NULL first going up; the flights without the figure are read after the others
+    // instead, so that each part still walks its index in order.
+    const [counted] = await select<{ n: number }>(`SELECT COUNT(*) AS n ${from} WHERE ${filter.where} AND ${sort.expr} IS NOT NULL`);
+    const valued = Number(counted?.n ?? 0);
+    ids = offset < valued ? await idsOf(` AND ${sort.expr} IS NOT NULL`, `${sort.expr} ASC, f.id ASC`, query.pageSize, offset) : [];
+    if (ids.length < query.pageSize) {
+      ids.push(...(await idsOf(` AND ${sort.expr} IS NULL`, 'f.id ASC', query.pageSize - ids.length, Math.max(0, offset - valued))));
+    }
+  } else {
+    // Going down, MariaDB sorts NULL last by itself.
+    const dir = query.order === 'asc' ? 'ASC' : 'DESC';
+    ids = await idsOf('', `${sort.expr} ${dir}, f.id ${dir}`, query.pageSize, offset);
+  }
+  const [counted] = await select<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`);
+  meta.total = Number(counted?.n ?? 0);
   if (ids.length === 0) return { data: [], meta };
   const flights = await Flight.findAll({ where: { id: { [Op.in]: ids } } });
   const byId = new Map(flights.map((f) => [f.id, f]));
@@ -260,7 +288,7 @@ export async function listFlights(club: ClubContext, query: FlightQuery): Promis
   const filter = flightFilterSql(club, query);
   if (!filter) return [];
   const rows = await sequelize.query<{ id: number }>(
-    `SELECT f.id FROM flights f JOIN clips c ON c.id = f.clip_id WHERE ${filter.where} ORDER BY f.id ASC`,
+    `SELECT f.id FROM flights f ${JOIN_SQL.clip} WHERE ${filter.where} ORDER BY f.id ASC`,
     { type: QueryTypes.SELECT, replacements: filter.replacements },
   );
   if (rows.length === 0) return [];

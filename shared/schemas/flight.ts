@@ -71,8 +71,8 @@ export const flightPatchSchema = z
   .refine(rangeOk, rangeIssue);
 export type FlightPatch = z.infer<typeof flightPatchSchema>;
 
-/** Columns the flights list sorts by on the server. */
-export const FLIGHT_SORTS = ['date', 'athlete', 'action', 'ball', 'status', 'launchSpeed', 'launchAngle', 'carry', 'standardCarry'] as const;
+/** Orders of the flights list on the server: `recent` is newest recorded first (the default), the rest by column. */
+export const FLIGHT_SORTS = ['recent', 'date', 'athlete', 'action', 'ball', 'status', 'launchSpeed', 'launchAngle', 'carry', 'standardCarry'] as const;
 export type FlightSort = (typeof FLIGHT_SORTS)[number];
 
 export const flightListQuerySchema = paginationQuerySchema.extend({
@@ -82,7 +82,7 @@ export const flightListQuerySchema = paginationQuerySchema.extend({
   status: z.enum(FLIGHT_STATUSES).optional(),
   action: actionKeySchema.optional(),
   ballId: z.string().trim().min(1).max(64).optional(),
-  sort: z.enum(FLIGHT_SORTS, { error: `sort must be one of ${FLIGHT_SORTS.join(', ')}.` }).default('date'),
+  sort: z.enum(FLIGHT_SORTS, { error: `sort must be one of ${FLIGHT_SORTS.join(', ')}.` }).default('recent'),
   order: z.enum(['asc', 'desc'], { error: 'order must be asc or desc.' }).default('desc'),
 });
 export type FlightListQuery = z.output<typeof flightListQuerySchema>;

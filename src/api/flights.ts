@@ -37,7 +37,7 @@ export async function listFlights(
   clubId: number,
   filters: FlightListFilters = {},
   options: RequestOptions = {},
-  order: Pick<FlightPageRequest, 'sort' | 'order'> = { sort: 'date', order: 'asc' },
+  order: Pick<FlightPageRequest, 'sort' | 'order'> = { sort: 'recent', order: 'asc' },
 ): Promise<ListResponse<Flight>> {
   return fetchAllPages<Flight>(`${clubBase(clubId)}/flights`, { ...options, query: { ...filters, ...order } });
 }

@@ -47,10 +47,11 @@ export const SORT_OF_FIELD: Record<string, FlightSort> = {
   carryM: 'carry',
   standardCarryM: 'standardCarry',
 };
-export const FIELD_OF_SORT = Object.fromEntries(Object.entries(SORT_OF_FIELD).map(([field, sort]) => [sort, field])) as Record<FlightSort, string>;
+export const FIELD_OF_SORT = Object.fromEntries(Object.entries(SORT_OF_FIELD).map(([field, sort]) => [sort, field])) as Partial<Record<FlightSort, string>>;
 
 const NO_FILTERS: FlightFilters = { sessionId: null, athleteId: null, action: null, ballId: null, status: null };
-const FIRST_PAGE: FlightPaging = { first: 0, rows: FLIGHT_PAGE_SIZES[0]!, sort: 'date', order: 'desc' };
+/** Newest recorded first until the coach sorts by a column. */
+const FIRST_PAGE: FlightPaging = { first: 0, rows: FLIGHT_PAGE_SIZES[0]!, sort: 'recent', order: 'desc' };
 
 /**
  * The Flights list: one page of the club's flights in view (an athlete's own only), filtered, sorted and paged

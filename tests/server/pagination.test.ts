@@ -105,7 +105,7 @@ describe('flights list paging', () => {
   it('refuses an unknown sort column and names the ones it knows', async () => {
     const res = await fx.coach.get(clubPath(fx, '/flights?sort=colour'));
     expect(res.status).toBe(400);
-    expect(res.body.error.fields.sort).toMatch(/^sort must be one of date, athlete, .*standardCarry\.$/);
+    expect(res.body.error.fields.sort).toMatch(/^sort must be one of recent, date, athlete, .*standardCarry\.$/);
   });
 
   it('sorts by the latest fit on the server, with unfitted flights last in either direction', async () => {
@@ -182,5 +182,23 @@ describe('sessions, clips and members paging', () => {
     const res = await fx.admin.get(clubPath(fx, `${path}?pageSize=${MAX_PAGE_SIZE + 1}`));
     expect(res.status).toBe(400);
     expect(res.body.error.fields.pageSize).toContain(`at most ${MAX_PAGE_SIZE}`);
+  });
+});
+
+describe('flights list default order', () => {
+  it('lists the newest recorded flights first when no sort is given', async () => {
+    const res = await fx.coach.get(clubPath(fx, '/flights?pageSize=3'));
+    const ids = (res.body.data as { id: number }[]).map((f) => f.id);
+    expect(ids).toEqual([...ids].sort((a, b) => b - a));
+    expect(ids[0]).toBeGreaterThan(ownFlightIds[OWN - 1]!);
+  });
+
+  it('pages across the flights without a fit when sorting upwards by a fit figure', async () => {
+    const pages = await Promise.all([1, 2, 3, 4].map((page) => fx.coach.get(clubPath(fx, `/flights?sort=launchSpeed&order=asc&pageSize=3&page=${page}`))));
+    const speeds = pages.flatMap((p) => (p.body.data as { latestFit: { launchSpeedMps: number } | null }[]).map((f) => f.latestFit?.launchSpeedMps ?? null));
+    expect(speeds).toHaveLength(OWN + OTHER);
+    expect(speeds.at(-1)).toBeNull();
+    const valued = speeds.slice(0, -1) as number[];
+    expect(valued).toEqual([...valued].sort((a, b) => a - b));
   });
 });
