@@ -10,6 +10,8 @@ import {
   type flightActionPatchSchema,
   type Flight as FlightDto,
   type FlightAction as FlightActionDto,
+  type FitSummary,
+  type FitWarning,
   type FlightDetail,
   type FlightInput,
   type FlightListQuery,
@@ -23,7 +25,6 @@ import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
 import { currentCalibration, toCalibrationDto } from './calibration';
-import { latestFits, toFitSummary } from './fits';
 import { latestJobs, toJobSummary } from './jobs';
 import { enqueueRefits } from './refits';
 import { pointsOf } from './tracks';
@@ -121,40 +122,83 @@ async function checkAthlete(clubId: number, athleteId: number, transaction?: Tra
   return profile;
 }
 
-async function sessionIdsOf(clipIds: number[]): Promise<Map<number, number>> {
-  const out = new Map<number, number>();
-  if (clipIds.length === 0) return out;
-  const clips = await Clip.findAll({ where: { id: { [Op.in]: clipIds } }, attributes: ['id', 'sessionId'] });
-  for (const c of clips) out.set(c.id, c.sessionId);
-  return out;
+interface FlightListRow {
+  id: number;
+  sessionId: number;
+  athleteName: string | null;
+  pointCount: number;
+  fitId: number | null;
+  fitModel: string | null;
+  fitStatus: 'fitted' | 'needs_attention' | null;
+  fitCreatedAt: Date | string | null;
+  fitSpeed: number | null;
+  fitAngle: number | null;
+  fitCarry: number | null;
+  fitCd: string | number | null;
+  fitCdError: string | number | null;
+  fitStandardCarry: string | number | null;
+  fitWarnings: string | FitWarning[] | null;
 }
 
+function finiteOrNull(value: unknown): number | null {
+  const n = typeof value === 'string' ? Number(value) : value;
+  return typeof n === 'number' && Number.isFinite(n) ? n : null;
+}
+
+function fitSummaryOf(row: FlightListRow): FitSummary | null {
+  if (row.fitId === null) return null;
+  const warnings = typeof row.fitWarnings === 'string' ? (JSON.parse(row.fitWarnings) as FitWarning[]) : (row.fitWarnings ?? []);
+  return {
+    id: Number(row.fitId),
+    model: row.fitModel ?? '',
+    status: row.fitStatus ?? 'fitted',
+    createdAt: new Date(row.fitCreatedAt ?? 0).toISOString(),
+    launchSpeedMps: finiteOrNull(row.fitSpeed),
+    launchAngleDeg: finiteOrNull(row.fitAngle),
+    carryM: finiteOrNull(row.fitCarry),
+    cd: finiteOrNull(row.fitCd),
+    cdError: finiteOrNull(row.fitCdError),
+    standardCarryM: finiteOrNull(row.fitStandardCarry),
+    warnings,
+  };
+}
+
+/**
+ * The list view of flights: one query for the athlete's name, the session, the point count and the latest
+ * fit's summary (through flights.latest_fit_id, reading only the summary's fields of the fit's JSON), and one
+ * for the jobs. Lists of any length cost the same two round trips.
+ */
 export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
   const ids = flights.map((f) => f.id);
-  const [athletes, sessions, fits, jobs, counts] = await Promise.all([
-    AthleteProfile.findAll({ where: { id: { [Op.in]: [...new Set(flights.map((f) => f.athleteProfileId))] } }, attributes: ['id', 'displayName'] }),
-    sessionIdsOf([...new Set(flights.map((f) => f.clipId))]),
-    latestFits(ids),
+  if (ids.length === 0) return [];
+  const [rows, jobs] = await Promise.all([
+    sequelize.query<FlightListRow>(
+      `SELECT f.id, c.session_id AS sessionId, a.display_name AS athleteName,
+              (SELECT COUNT(*) FROM track_points t WHERE t.flight_id = f.id) AS pointCount,
+              lf.id AS fitId, lf.model AS fitModel, lf.status AS fitStatus, lf.created_at AS fitCreatedAt,
+              lf.launch_speed_mps AS fitSpeed, lf.launch_angle_deg AS fitAngle, lf.carry_m AS fitCarry,
+              JSON_VALUE(lf.result, '$.cd') AS fitCd, JSON_VALUE(lf.result, '$.cdError') AS fitCdError,
+              JSON_VALUE(lf.result, '$.standardCarry') AS fitStandardCarry, lf.warnings AS fitWarnings
+         FROM flights f
+         JOIN clips c ON c.id = f.clip_id
+         LEFT JOIN athlete_profiles a ON a.id = f.athlete_profile_id
+         LEFT JOIN fits lf ON lf.id = f.latest_fit_id
+        WHERE f.id IN (:ids)`,
+      { type: QueryTypes.SELECT, replacements: { ids } },
+    ),
     latestJobs('flightId', ids, ['flight.follow', 'flight.fit']),
-    ids.length === 0
-      ? Promise.resolve([] as { id: number; n: number }[])
-      : sequelize.query<{ id: number; n: number }>('SELECT flight_id AS id, COUNT(*) AS n FROM track_points WHERE flight_id IN (:ids) GROUP BY flight_id', {
-          type: QueryTypes.SELECT,
-          replacements: { ids },
-        }),
   ]);
-  const names = new Map(athletes.map((a) => [a.id, a.displayName]));
-  const pointCounts = new Map(counts.map((r) => [Number(r.id), Number(r.n)]));
+  const byId = new Map(rows.map((r) => [Number(r.id), r]));
   return flights.map((f) => {
-    const fit = fits.get(f.id);
+    const row = byId.get(f.id);
     const job = jobs.get(f.id);
     return {
       id: f.id,
       clubId: f.clubId,
-      sessionId: sessions.get(f.clipId) ?? 0,
+      sessionId: row ? Number(row.sessionId) : 0,
       clipId: f.clipId,
       athleteId: f.athleteProfileId,
-      athleteName: names.get(f.athleteProfileId) ?? '',
+      athleteName: row?.athleteName ?? '',
       action: f.action,
       ballId: f.ballId,
       frameStart: f.frameStart,
@@ -162,8 +206,8 @@ export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
       status: f.status,
       attentionReason: f.attentionReason ?? null,
       notes: f.notes ?? null,
-      pointCount: pointCounts.get(f.id) ?? 0,
-      latestFit: fit ? toFitSummary(fit) : null,
+      pointCount: row ? Number(row.pointCount) : 0,
+      latestFit: row ? fitSummaryOf(row) : null,
       job: job ? toJobSummary(job) : null,
       createdAt: f.createdAt.toISOString(),
       updatedAt: f.updatedAt.toISOString(),
@@ -259,22 +303,26 @@ export async function listFlightsPage(club: ClubContext, query: FlightListQuery)
       Number(r.id),
     );
   const offset = pageOffset(query);
-  let ids: number[];
-  if (sort.nullable && query.order === 'asc') {
+  const pageIds = async (): Promise<number[]> => {
+    if (!sort.nullable || query.order !== 'asc') {
+      // Going down, MariaDB sorts NULL last by itself.
+      const dir = query.order === 'asc' ? 'ASC' : 'DESC';
+      return idsOf('', `${sort.expr} ${dir}, f.id ${dir}`, query.pageSize, offset);
+    }
     // Note: MariaDB sorts NULL first going up; the flights without the figure are read after the others
     // instead, so that each part still walks its index in order.
     const [counted] = await select<{ n: number }>(`SELECT COUNT(*) AS n ${from} WHERE ${filter.where} AND ${sort.expr} IS NOT NULL`);
     const valued = Number(counted?.n ?? 0);
-    ids = offset < valued ? await idsOf(` AND ${sort.expr} IS NOT NULL`, `${sort.expr} ASC, f.id ASC`, query.pageSize, offset) : [];
+    const ids = offset < valued ? await idsOf(` AND ${sort.expr} IS NOT NULL`, `${sort.expr} ASC, f.id ASC`, query.pageSize, offset) : [];
     if (ids.length < query.pageSize) {
       ids.push(...(await idsOf(` AND ${sort.expr} IS NULL`, 'f.id ASC', query.pageSize - ids.length, Math.max(0, offset - valued))));
     }
-  } else {
-    // Going down, MariaDB sorts NULL last by itself.
-    const dir = query.order === 'asc' ? 'ASC' : 'DESC';
-    ids = await idsOf('', `${sort.expr} ${dir}, f.id ${dir}`, query.pageSize, offset);
-  }
-  const [counted] = await select<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`);
+    return ids;
+  };
+  const [ids, [counted]] = await Promise.all([
+    pageIds(),
+    select<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`),
+  ]);
   meta.total = Number(counted?.n ?? 0);
   if (ids.length === 0) return { data: [], meta };
   const flights = await Flight.findAll({ where: { id: { [Op.in]: ids } } });
