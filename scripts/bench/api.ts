@@ -10,6 +10,7 @@
  */
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { createServer } from 'node:net';
+import { availableParallelism, loadavg } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import autocannon from 'autocannon';
@@ -271,7 +272,8 @@ export async function run(): Promise<void> {
   const seeded = await seedClub();
   console.log(
     `club of ${FLIGHTS.toLocaleString('en')} flights, ${(FLIGHTS * POINTS_PER_FLIGHT).toLocaleString('en')} track points in "${DB_NAME}" ` +
-      `(${seeded.reused ? 'reused' : 'seeded'} in ${seeded.seconds.toFixed(1)} s); ${CONNECTIONS} clients, ${DURATION_S} s per request`,
+      `(${seeded.reused ? 'reused' : 'seeded'} in ${seeded.seconds.toFixed(1)} s); ${CONNECTIONS} clients, ${DURATION_S} s per request; ` +
+      `load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores before the run (the figures hold only for a machine otherwise idle)`,
   );
 
   const port = await freePort();

@@ -49,32 +49,35 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
 }
 
 export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
-  const club = await findClub(clubCtx.id);
-  const byRole = (await Membership.findAll({
-    where: { clubId: club.id },
-    attributes: ['role', [fn('COUNT', col('id')), 'n']],
-    group: ['role'],
-    raw: true,
-  })) as unknown as { role: Role; n: number | string }[];
+  // The counts are independent: one round trip's wait for all of them.
+  const [club, byRole, athleteProfiles, sessions, clips, flights, flightsNeedingAttention, clipsProcessing] = await Promise.all([
+    findClub(clubCtx.id),
+    Membership.findAll({
+      where: { clubId: clubCtx.id },
+      attributes: ['role', [fn('COUNT', col('id')), 'n']],
+      group: ['role'],
+      raw: true,
+    }) as unknown as Promise<{ role: Role; n: number | string }[]>,
+    clubCtx.role === 'athlete' ? Promise.resolve(clubCtx.athleteProfileId === null ? 0 : 1) : AthleteProfile.count({ where: { clubId: clubCtx.id } }),
+    // Each resource counts what the caller may see of it (an athlete: their own).
+    countSessions(clubCtx),
+    countClips(clubCtx),
+    countFlights(clubCtx),
+    countFlights(clubCtx, 'needs_attention'),
+    countProcessingClips(clubCtx),
+  ]);
   const roleCount = (role: Role) => Number(byRole.find((r) => r.role === role)?.n ?? 0);
-  const athleteProfiles =
-    clubCtx.role === 'athlete'
-      ? clubCtx.athleteProfileId === null
-        ? 0
-        : 1
-      : await AthleteProfile.count({ where: { clubId: club.id } });
   const counts: ClubOverview['counts'] = {
     members: roleCount('admin') + roleCount('coach') + roleCount('athlete'),
     admins: roleCount('admin'),
     coaches: roleCount('coach'),
     athletes: roleCount('athlete'),
     athleteProfiles,
-    // Each resource counts what the caller may see of it (an athlete: their own).
-    sessions: await countSessions(clubCtx),
-    clips: await countClips(clubCtx),
-    flights: await countFlights(clubCtx),
-    flightsNeedingAttention: await countFlights(clubCtx, 'needs_attention'),
-    clipsProcessing: await countProcessingClips(clubCtx),
+    sessions,
+    clips,
+    flights,
+    flightsNeedingAttention,
+    clipsProcessing,
   };
   return {
     club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
