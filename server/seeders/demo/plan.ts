@@ -255,7 +255,7 @@ export const DEMO_SESSIONS: readonly DemoSessionPlan[] = [
       { athlete: 'Juno Pelham', action: 'long_throw', ballId: 'handball-3', reps: 4, launch: { speed: 17.4, angleDeg: 35, height: 1.9 }, cd: 0.42, tracing: 'manual' },
       { athlete: 'Orrin Calloway', action: DEMO_CUSTOM_ACTION.key, ballId: 'table-tennis', reps: 3, launch: { speed: 11.5, angleDeg: 48, height: 1.5 }, cd: 0.5, tracing: 'auto' },
       {
-        athlete: 'Orrin Calloway', action: DEMO_HEAVY_ACTION.key, ballId: 'golf', reps: 3, launch: { speed: 11.5, angleDeg: 48, height: 1.5 }, cd: 0.3, tracing: 'auto',
+        athlete: 'Orrin Calloway', action: DEMO_HEAVY_ACTION.key, ballId: 'golf', reps: 4, launch: { speed: 11.5, angleDeg: 48, height: 1.5 }, cd: 0.3, tracing: 'auto',
         faults: { 2: 'left-picture' },
       },
       { athlete: 'Bram Tolliver', action: 'shot_put', ballId: 'shot-men', reps: 4, launch: { speed: 11.9, angleDeg: 37, height: 2.1 }, cd: 0.47, tracing: 'auto' },
