@@ -2,7 +2,7 @@
  * Flights inside clips, and each club's action list. Coaches and admins manage them; an athlete sees
  * only their own flights (`athleteProfileId`, as `scopeAthlete()` gives it).
  */
-import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes, type Transaction } from 'sequelize';
 import type { z } from 'zod';
 import {
   DEFAULT_FLIGHT_ACTIONS,
@@ -23,7 +23,7 @@ import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
 import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
+import { AthleteProfile, Clip, Flight, FlightAction, type Job } from '../models';
 import { currentCalibration, toCalibrationDto } from './calibration';
 import { latestJobs, toJobSummary } from './jobs';
 import { enqueueRefits } from './refits';
@@ -163,17 +163,25 @@ function fitSummaryOf(row: FlightListRow): FitSummary | null {
   };
 }
 
+/** A flight's own columns, as the model or the list's query gives them. */
+type FlightCore = Pick<
+  Flight,
+  'id' | 'clubId' | 'clipId' | 'athleteProfileId' | 'action' | 'ballId' | 'frameStart' | 'frameEnd' | 'status' | 'attentionReason' | 'notes'
+> & { createdAt: Date | string; updatedAt: Date | string };
+
 /**
- * The list view of flights: one query for the athlete's name, the session, the point count and the latest
- * fit's summary (through flights.latest_fit_id, reading only the summary's fields of the fit's JSON), and one
- * for the jobs. Lists of any length cost the same two round trips.
+ * The list view of flights by id, in the order of `ids`: one query for the flight with its athlete's name,
+ * session, point count and the latest fit's summary (through flights.latest_fit_id, reading only the
+ * summary's fields of the fit's JSON), and one for the jobs. Lists of any length cost the same two round trips.
  */
-export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
-  const ids = flights.map((f) => f.id);
+export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
   if (ids.length === 0) return [];
   const [rows, jobs] = await Promise.all([
-    sequelize.query<FlightListRow>(
-      `SELECT f.id, c.session_id AS sessionId, a.display_name AS athleteName,
+    sequelize.query<FlightListRow & FlightCore>(
+      `SELECT f.id, f.club_id AS clubId, f.clip_id AS clipId, f.athlete_profile_id AS athleteProfileId, f.action, f.ball_id AS ballId,
+              f.frame_start AS frameStart, f.frame_end AS frameEnd, f.status, f.attention_reason AS attentionReason, f.notes,
+              f.created_at AS createdAt, f.updated_at AS updatedAt,
+              c.session_id AS sessionId, a.display_name AS athleteName,
               (SELECT COUNT(*) FROM track_points t WHERE t.flight_id = f.id) AS pointCount,
               lf.id AS fitId, lf.model AS fitModel, lf.status AS fitStatus, lf.created_at AS fitCreatedAt,
               lf.launch_speed_mps AS fitSpeed, lf.launch_angle_deg AS fitAngle, lf.carry_m AS fitCarry,
@@ -189,29 +197,43 @@ export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
     latestJobs('flightId', ids, ['flight.follow', 'flight.fit']),
   ]);
   const byId = new Map(rows.map((r) => [Number(r.id), r]));
+  return ids.flatMap((id) => {
+    const row = byId.get(id);
+    return row ? [toDto({ ...row, id, clubId: Number(row.clubId), clipId: Number(row.clipId), athleteProfileId: Number(row.athleteProfileId) }, row, jobs.get(id))] : [];
+  });
+}
+
+function toDto(f: FlightCore, row: FlightListRow | undefined, job: Job | undefined): FlightDto {
+  return {
+    id: f.id,
+    clubId: f.clubId,
+    sessionId: row ? Number(row.sessionId) : 0,
+    clipId: f.clipId,
+    athleteId: f.athleteProfileId,
+    athleteName: row?.athleteName ?? '',
+    action: f.action,
+    ballId: f.ballId,
+    frameStart: Number(f.frameStart),
+    frameEnd: Number(f.frameEnd),
+    status: f.status,
+    attentionReason: f.attentionReason ?? null,
+    notes: f.notes ?? null,
+    pointCount: row ? Number(row.pointCount) : 0,
+    latestFit: row ? fitSummaryOf(row) : null,
+    job: job ? toJobSummary(job) : null,
+    createdAt: new Date(f.createdAt).toISOString(),
+    updatedAt: new Date(f.updatedAt).toISOString(),
+  };
+}
+
+/** The list view of flights the caller holds as models (their own columns as the models have them). */
+export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
+  const read = await flightDtosByIds(flights.map((f) => f.id));
+  const byId = new Map(read.map((d) => [d.id, d]));
   return flights.map((f) => {
-    const row = byId.get(f.id);
-    const job = jobs.get(f.id);
-    return {
-      id: f.id,
-      clubId: f.clubId,
-      sessionId: row ? Number(row.sessionId) : 0,
-      clipId: f.clipId,
-      athleteId: f.athleteProfileId,
-      athleteName: row?.athleteName ?? '',
-      action: f.action,
-      ballId: f.ballId,
-      frameStart: f.frameStart,
-      frameEnd: f.frameEnd,
-      status: f.status,
-      attentionReason: f.attentionReason ?? null,
-      notes: f.notes ?? null,
-      pointCount: row ? Number(row.pointCount) : 0,
-      latestFit: row ? fitSummaryOf(row) : null,
-      job: job ? toJobSummary(job) : null,
-      createdAt: f.createdAt.toISOString(),
-      updatedAt: f.updatedAt.toISOString(),
-    };
+    const d = byId.get(f.id);
+    // The model's own columns win: the caller may hold changes this read does not see yet.
+    return { ...toDto(f, undefined, undefined), ...(d ? { sessionId: d.sessionId, athleteName: d.athleteName, pointCount: d.pointCount, latestFit: d.latestFit, job: d.job } : {}) };
   });
 }
 
@@ -324,11 +346,7 @@ export async function listFlightsPage(club: ClubContext, query: FlightListQuery)
     select<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`),
   ]);
   meta.total = Number(counted?.n ?? 0);
-  if (ids.length === 0) return { data: [], meta };
-  const flights = await Flight.findAll({ where: { id: { [Op.in]: ids } } });
-  const byId = new Map(flights.map((f) => [f.id, f]));
-  const ordered = ids.map((id) => byId.get(id)).filter((f): f is Flight => f !== undefined);
-  return { data: await toFlightDtos(ordered), meta };
+  return { data: await flightDtosByIds(ids), meta };
 }
 
 /** Every flight the caller may see that passes the filters, oldest first (for a clip's own list and the services). */
@@ -339,9 +357,7 @@ export async function listFlights(club: ClubContext, query: FlightQuery): Promis
     `SELECT f.id FROM flights f ${JOIN_SQL.clip} WHERE ${filter.where} ORDER BY f.id ASC`,
     { type: QueryTypes.SELECT, replacements: filter.replacements },
   );
-  if (rows.length === 0) return [];
-  const flights = await Flight.findAll({ where: { id: { [Op.in]: rows.map((r) => Number(r.id)) } }, order: [['id', 'ASC']] });
-  return toFlightDtos(flights);
+  return flightDtosByIds(rows.map((r) => Number(r.id)));
 }
 
 export async function listClipFlights(club: ClubContext, clipId: number): Promise<FlightDto[]> {

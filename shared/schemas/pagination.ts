@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 
-export const DEFAULT_PAGE_SIZE = 50;
+export const DEFAULT_PAGE_SIZE = 25;
 /** Largest page a list answers; a client that needs more asks for the next pages. */
 export const MAX_PAGE_SIZE = 200;
 
