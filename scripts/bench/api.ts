@@ -6,9 +6,12 @@
  * - the flights list (first, filtered and sorted page) and the Overview: p95 at most 50 ms;
  * - `GET /auth/me` (a signed-in trivial request): at least a third of the throughput of `GET /health`.
  * The data is seeded once with multi-row INSERTs and reused while the club holds what it should.
+ * Beside the figures: the app process's CPU time per request, which depends far less on what else the
+ * machine runs than throughput and latency do (the database's share is not in it).
  * Nothing asserts a time: the figures depend on the machine (and on what else runs on it).
  */
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { availableParallelism, loadavg } from 'node:os';
 import { dirname, join } from 'node:path';
@@ -229,7 +232,21 @@ async function signIn(base: string): Promise<string> {
   return cookieOf(answer);
 }
 
+/** CPU seconds (user + system) a process has used so far, from /proc (null where there is none). */
+function cpuSeconds(pid: number | undefined): number | null {
+  if (pid === undefined) return null;
+  try {
+    const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]!.split(' ');
+    // utime and stime are fields 14 and 15 of the file (11 and 12 after the command name), in clock ticks of 1/100 s.
+    return (Number(fields[11]) + Number(fields[12])) / 100;
+  } catch {
+    return null;
+  }
+}
+
 interface Figures {
+  /** The app process's CPU time per answered request (ms): the cost of a request whatever else runs on the machine. */
+  cpuMs: number | null;
   rps: number;
   p50: number;
   p95: number;
@@ -243,8 +260,9 @@ function percentile(sorted: number[], p: number): number {
 }
 
 /** Loads one URL with autocannon; latencies from every response (autocannon's own summary has no p95). */
-async function load(url: string, cookie: string | null): Promise<Figures> {
+async function load(url: string, cookie: string | null, appPid: number | undefined): Promise<Figures> {
   const times: number[] = [];
+  const cpuBefore = cpuSeconds(appPid);
   let errors = 0;
   const result = await new Promise<autocannon.Result>((resolve, reject) => {
     const instance = autocannon({ url, connections: CONNECTIONS, duration: DURATION_S, headers: cookie ? { cookie } : {} }, (err, res) =>
@@ -256,7 +274,9 @@ async function load(url: string, cookie: string | null): Promise<Figures> {
     });
   });
   times.sort((a, b) => a - b);
-  return { rps: result.requests.average, p50: percentile(times, 50), p95: percentile(times, 95), p99: percentile(times, 99), errors: errors + result.errors };
+  const cpuAfter = cpuSeconds(appPid);
+  const cpuMs = cpuBefore === null || cpuAfter === null || times.length === 0 ? null : ((cpuAfter - cpuBefore) * 1000) / times.length;
+  return { cpuMs, rps: result.requests.average, p50: percentile(times, 50), p95: percentile(times, 95), p99: percentile(times, 99), errors: errors + result.errors };
 }
 
 export async function run(): Promise<void> {
@@ -311,11 +331,11 @@ export async function run(): Promise<void> {
     // BENCH_ONLY=auth narrows a run to the requests whose name holds the word (GET /health always runs: the others compare with it).
     const only = process.env.BENCH_ONLY?.toLowerCase();
     for (const c of cases.filter((c, i) => i === 0 || !only || c.name.toLowerCase().includes(only))) {
-      const f = await load(c.url, c.auth ? cookie : null);
+      const f = await load(c.url, c.auth ? cookie : null, child.pid);
       health ??= f;
-      rows.push([c.name, f.rps.toFixed(0), f.p50.toFixed(1), f.p95.toFixed(1), f.p99.toFixed(1), String(f.errors), c.target(f, health)]);
+      rows.push([c.name, f.rps.toFixed(0), f.p50.toFixed(1), f.p95.toFixed(1), f.p99.toFixed(1), f.cpuMs === null ? '—' : f.cpuMs.toFixed(2), String(f.errors), c.target(f, health)]);
     }
-    printTable(['request', 'req/s', 'p50 ms', 'p95 ms', 'p99 ms', 'errors', 'target'], rows);
+    printTable(['request', 'req/s', 'p50 ms', 'p95 ms', 'p99 ms', 'app CPU ms/req', 'errors', 'target'], rows);
   } finally {
     child.kill('SIGTERM');
     await new Promise((r) => child.once('exit', r));
