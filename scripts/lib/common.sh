@@ -37,6 +37,7 @@ set_defaults() {
   export DB_NAME="${DB_NAME:-arcwright}"
   export TEST_DB_NAME="${TEST_DB_NAME:-arcwright_test}"
   export E2E_DB_NAME="${E2E_DB_NAME:-arcwright_e2e}"
+  export BENCH_DB_NAME="${BENCH_DB_NAME:-arcwright_bench_api}"
   export DB_USER="${DB_USER:-arcwright}"
   export DB_PASSWORD="${DB_PASSWORD:-arcwright-local}"
   export DB_PRIVATE="${DB_PRIVATE:-1}"

@@ -3,13 +3,14 @@
  * pointed by configuration at Google or at the local OAuth 2.0 fake (server/fakes/oauth.ts).
  * The session keeps only the user id.
  */
+import type { Request } from 'express';
 import passport from 'passport';
 import { Strategy as GoogleStrategy, type Profile } from 'passport-google-oauth20';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { config } from '../config';
+import { takeSessionUser } from '../http/session';
 import { log } from '../logger';
-import { User } from '../models';
-import { checkPassword, findOrCreateGoogleUser, toSessionUser } from '../services/auth';
+import { checkPassword, findOrCreateGoogleUser, findSessionUser } from '../services/auth';
 
 let configured = false;
 
@@ -66,13 +67,19 @@ export function configurePassport(): typeof passport {
   }
 
   passport.serializeUser((user, done) => done(null, user.id));
-  passport.deserializeUser((id: unknown, done) => {
+  passport.deserializeUser((req: Request, id: unknown, done: (err: unknown, user?: Express.User | false) => void) => {
     if (typeof id !== 'number') {
       done(null, false);
       return;
     }
-    User.findByPk(id).then(
-      (user) => done(null, user ? toSessionUser(user) : false),
+    // The session store read the user's row with the session (one round trip less); otherwise read it here.
+    const known = takeSessionUser(req.sessionID, id);
+    if (known !== undefined) {
+      done(null, known ?? false);
+      return;
+    }
+    findSessionUser(id).then(
+      (user) => done(null, user ?? false),
       (err: unknown) => done(err),
     );
   });

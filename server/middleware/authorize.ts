@@ -11,7 +11,8 @@ import type { Request, RequestHandler } from 'express';
 import { ROLES, type Role } from '../../shared/types/api';
 import { ApiError, notFound, parseId } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { AthleteProfile, Membership } from '../models';
+import { QueryTypes } from 'sequelize';
+import { sequelize } from '../db';
 
 /** Every role; for club routes any member may use. */
 export const ANY_ROLE: readonly Role[] = ROLES;
@@ -28,10 +29,15 @@ const ROLE_WORDS: Record<Role, string> = { admin: 'club admin', coach: 'coach', 
 
 /** Loads the member's role and athlete profile in a club, or null when the user is no member. */
 export async function loadClubContext(userId: number, clubId: number): Promise<ClubContext | null> {
-  const membership = await Membership.findOne({ where: { userId, clubId }, attributes: ['role'] });
-  if (!membership) return null;
-  const profile = await AthleteProfile.findOne({ where: { userId, clubId }, attributes: ['id'] });
-  return { id: clubId, role: membership.role, athleteProfileId: profile?.id ?? null };
+  // One plain query per club request (it runs in front of every club route).
+  const [row] = await sequelize.query<{ role: Role; profileId: number | null }>(
+    `SELECT m.role AS role, p.id AS profileId FROM memberships m
+       LEFT JOIN athlete_profiles p ON p.club_id = m.club_id AND p.user_id = m.user_id
+      WHERE m.user_id = ? AND m.club_id = ? LIMIT 1`,
+    { type: QueryTypes.SELECT, replacements: [userId, clubId] },
+  );
+  if (!row) return null;
+  return { id: clubId, role: row.role, athleteProfileId: row.profileId === null ? null : Number(row.profileId) };
 }
 
 export function clubAccess(...roles: Role[]): RequestHandler {

@@ -2,6 +2,7 @@
  * Initialises every model on the shared Sequelize instance and declares ALL associations, in one place.
  * Import models from here (not from their files) so they are always initialised before use.
  */
+import type { Transaction } from 'sequelize';
 import { sequelize } from '../db';
 import { AthleteProfile, initAthleteProfile } from './athlete-profile';
 import { BillingEvent, initBillingEvent } from './billing-event';
@@ -65,6 +66,34 @@ Flight.hasMany(TrackPoint, { foreignKey: 'flightId', as: 'points' });
 TrackPoint.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 Flight.hasMany(Fit, { foreignKey: 'flightId', as: 'fits' });
 Fit.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
+
+/**
+ * Keeps `flights.latest_fit_id` and the latest fit's figures on the flight (migration 0320) in the transaction
+ * that adds the fit; the Flights list sorts by them. Fits are only ever added (a refit adds a row).
+ */
+async function markLatestFits(fits: readonly Fit[], transaction: Transaction | null | undefined): Promise<void> {
+  const finite = (v: unknown) => (typeof v === 'number' && Number.isFinite(v) ? v : null);
+  for (const fit of fits) {
+    await sequelize.query(
+      `UPDATE flights SET latest_fit_id = :fitId, fit_launch_speed_mps = :speed, fit_launch_angle_deg = :angle, fit_carry_m = :carry,
+              fit_standard_carry_m = :standardCarry
+        WHERE id = :flightId AND (latest_fit_id IS NULL OR latest_fit_id < :fitId)`,
+      {
+        replacements: {
+          fitId: fit.id,
+          flightId: fit.flightId,
+          speed: finite(fit.launchSpeedMps),
+          angle: finite(fit.launchAngleDeg),
+          carry: finite(fit.carryM),
+          standardCarry: finite(fit.result?.standardCarry),
+        },
+        transaction: transaction ?? undefined,
+      },
+    );
+  }
+}
+Fit.afterCreate((fit, options) => markLatestFits([fit], options.transaction));
+Fit.afterBulkCreate((fits, options) => markLatestFits(fits, options.transaction));
 Club.hasMany(FlightAction, { foreignKey: 'clubId', as: 'flightActions' });
 Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
 

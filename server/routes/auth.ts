@@ -32,8 +32,8 @@ function authenticateLocal(req: Request, res: Response): Promise<Express.User | 
   });
 }
 
-async function meOrThrow(userId: number) {
-  const me = await loadMe(userId);
+async function meOrThrow(userId: number, known?: Express.User) {
+  const me = await loadMe(userId, known);
   if (!me) throw new ApiError('UNAUTHENTICATED', 'Your account could not be found; sign in again.');
   return me;
 }
@@ -71,7 +71,8 @@ export function authRouter(options: AuthRouterOptions): Router {
   });
 
   router.get('/auth/me', requireUser, async (req, res) => {
-    res.json({ data: await meOrThrow((req.user as Express.User).id) });
+    const user = req.user as Express.User;
+    res.json({ data: await meOrThrow(user.id, user) });
   });
 
   router.get('/auth/google', publicRoute, googleEnabled, passport.authenticate('google', { session: true }));

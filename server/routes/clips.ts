@@ -112,8 +112,7 @@ clipsRouter.post('/clubs/:clubId/sessions/:sessionId/clips', clubAccess('admin',
 clipsRouter.get('/clubs/:clubId/clips', clubAccess(...ANY_ROLE), async (req, res) => {
   const query = clipListQuerySchema.safeParse(req.query);
   if (!query.success) throw validationError(query.error);
-  const clips = await listClips(clubOf(req), query.data);
-  res.json({ data: clips, meta: { total: clips.length } });
+  res.json(await listClips(clubOf(req), query.data));
 });
 
 clipsRouter.get('/clubs/:clubId/clips/:clipId', clubAccess(...ANY_ROLE), async (req, res) => {

@@ -20,7 +20,7 @@ import {
   getFlightDetail,
   listActions,
   listClipFlights,
-  listFlights,
+  listFlightsPage,
   patchAction,
   patchFlight,
 } from '../services/flights';
@@ -52,8 +52,7 @@ flightsRouter.delete('/clubs/:clubId/flight-actions/:actionId', clubAccess('admi
 flightsRouter.get('/clubs/:clubId/flights', clubAccess(...ANY_ROLE), async (req, res) => {
   const query = flightListQuerySchema.safeParse(req.query);
   if (!query.success) throw validationError(query.error);
-  const flights = await listFlights(clubOf(req), query.data);
-  res.json({ data: flights, meta: { total: flights.length } });
+  res.json(await listFlightsPage(clubOf(req), query.data));
 });
 
 flightsRouter.get('/clubs/:clubId/clips/:clipId/flights', clubAccess(...ANY_ROLE), async (req, res) => {

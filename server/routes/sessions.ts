@@ -13,8 +13,7 @@ export const sessionsRouter = Router();
 sessionsRouter.get('/clubs/:clubId/sessions', clubAccess(...ANY_ROLE), async (req, res) => {
   const query = sessionListQuerySchema.safeParse(req.query);
   if (!query.success) throw validationError(query.error);
-  const sessions = await listSessions(clubOf(req), query.data);
-  res.json({ data: sessions, meta: { total: sessions.length } });
+  res.json(await listSessions(clubOf(req), query.data));
 });
 
 sessionsRouter.post('/clubs/:clubId/sessions', clubAccess('admin', 'coach'), validate(sessionInputSchema), async (req, res) => {

@@ -1,6 +1,7 @@
 /**
  * The demo club of the invented scenario: "Fennick Vale Sporting Club" with one admin, one coach, one
- * athlete who signs in, and athlete profiles without sign-in. Idempotent: finds before it creates.
+ * athlete who signs in, and athlete profiles without sign-in: ten athletes from 15 to 47, two of them
+ * youths (under 18 in the year the club is seeded). Idempotent: finds before it creates.
  */
 import type { Transaction } from 'sequelize';
 import type { DominantSide } from '../../shared/schemas/club';
@@ -18,6 +19,11 @@ interface DemoAthlete {
   position: string;
 }
 
+/** Birth year of someone who turns `age` this year: ages stay true whatever year the club is seeded in. */
+export function bornYearsAgo(age: number, now = new Date()): number {
+  return now.getUTCFullYear() - age;
+}
+
 export const DEMO_USERS: { email: string; displayName: string; role: Role; athlete?: DemoAthlete }[] = [
   { email: 'admin@fennickvale.example', displayName: 'Maren Holloway', role: 'admin' },
   { email: 'coach@fennickvale.example', displayName: 'Teodor Quill', role: 'coach' },
@@ -25,16 +31,21 @@ export const DEMO_USERS: { email: string; displayName: string; role: Role; athle
     email: 'athlete@fennickvale.example',
     displayName: 'Isla Brackwater',
     role: 'athlete',
-    athlete: { displayName: 'Isla Brackwater', birthYear: 2009, dominantSide: 'right', position: 'punter' },
+    athlete: { displayName: 'Isla Brackwater', birthYear: bornYearsAgo(16), dominantSide: 'right', position: 'punter' },
   },
 ];
 
 /** Athletes the coaches keep without a sign-in. */
 export const DEMO_PROFILES: DemoAthlete[] = [
-  { displayName: 'Orrin Calloway', birthYear: 2007, dominantSide: 'left', position: 'goal kicker' },
-  { displayName: 'Saskia Fenwright', birthYear: 2010, dominantSide: 'right', position: 'outfield thrower' },
-  { displayName: 'Bram Tolliver', birthYear: 2005, dominantSide: 'right', position: 'shot put' },
-  { displayName: 'Juno Pelham', birthYear: 2008, dominantSide: 'both', position: 'long throw-in' },
+  { displayName: 'Orrin Calloway', birthYear: bornYearsAgo(20), dominantSide: 'left', position: 'goal kicker' },
+  { displayName: 'Saskia Fenwright', birthYear: bornYearsAgo(15), dominantSide: 'right', position: 'outfield thrower' },
+  { displayName: 'Bram Tolliver', birthYear: bornYearsAgo(22), dominantSide: 'right', position: 'shot put' },
+  { displayName: 'Juno Pelham', birthYear: bornYearsAgo(19), dominantSide: 'both', position: 'long throw-in' },
+  { displayName: 'Wren Ashcombe', birthYear: bornYearsAgo(25), dominantSide: 'left', position: 'shot put' },
+  { displayName: 'Cato Merriweather', birthYear: bornYearsAgo(29), dominantSide: 'right', position: 'goalkeeper' },
+  { displayName: 'Elspeth Rook', birthYear: bornYearsAgo(33), dominantSide: 'right', position: 'handball back' },
+  { displayName: 'Perrin Oakhurst', birthYear: bornYearsAgo(47), dominantSide: 'right', position: 'masters shot put' },
+  { displayName: 'Nell Hawthorne', birthYear: bornYearsAgo(23), dominantSide: 'left', position: 'place kicker' },
 ];
 
 async function profile(clubId: number, userId: number | null, athlete: DemoAthlete, transaction: Transaction): Promise<void> {

@@ -1,10 +1,13 @@
 /**
- * Demo flights of "Fennick Vale Sporting Club": two sessions in different air (a cool sea-level evening,
- * a warm day at 1,600 m), one generated clip per flight, the traced points, the calibration, and queued
- * `clip.process` and `flight.fit` jobs that the worker of the running app (or `npm run worker`) carries out.
+ * Demo flights of "Fennick Vale Sporting Club": a month of training in four sessions in different air and
+ * wind (demo/plan.ts). A few flights are rendered as clips by the project's generator and go through the
+ * real pipeline (`clip.process`); the other reps are seeded as traced tracks without footage
+ * (demo/tracks.ts), because rendering every clip would take the first start past two minutes. Every flight
+ * gets its calibration, its traced points and a queued `flight.fit` job that the worker of the running app
+ * (or `npm run worker`) carries out with the real engine.
  *
- * Idempotent: a demo session already in the club (same venue and date) is left as it is, with whatever
- * the coaches did to it since; only missing sessions are seeded.
+ * Idempotent: a demo session already in the club (same venue) is left as it is, with whatever the coaches
+ * did to it since; only missing sessions are seeded.
  *
  * Files and the transaction: the clips are rendered into a work folder of the storage first; the rows go
  * into the seeding transaction; the files move into storage only after that transaction commits (they
@@ -25,8 +28,9 @@ import { ensureDefaultActions } from '../services/flights';
 import { insertPoints } from '../services/tracks';
 import { clipKeys, LocalDiskStorage, storage } from '../storage';
 import { DEMO_CLUB_NAME, DEMO_USERS } from './0001-demo-club';
-import { DEMO_CUSTOM_ACTION, DEMO_SESSIONS, type DemoSessionPlan } from './demo/plan';
+import { DEMO_CUSTOM_ACTIONS, DEMO_SESSIONS, type DemoSessionPlan } from './demo/plan';
 import { checkVideoTools, renderDemoClip, type RenderedDemoClip } from './demo/render';
+import { seededTracks, type SeededDemoTrack } from './demo/tracks';
 
 /** Prefix of this seeder's work folders in the storage's `.work` folder. */
 const WORK_PURPOSE = 'demo-flights';
@@ -109,6 +113,58 @@ interface Seeded {
 }
 
 /** Inserts one demo session with its clips, calibrations, flights, points and jobs. */
+/** Inserts a seeded rep: a clip row without footage, its calibration, the flight, its points and its fit job. */
+async function insertTrack(clubId: number, sessionId: number, track: SeededDemoTrack, athletes: Map<string, number>, transaction: Transaction): Promise<void> {
+  const { clip: c, block } = track;
+  if (!BALLS[block.ballId]) throw new Error(`Demo track "${track.key}" names the ball "${block.ballId}", which is not in the catalogue.`);
+  const clip = await Clip.create(
+    {
+      clubId,
+      sessionId,
+      label: c.label,
+      kind: 'video',
+      originalName: c.fileName,
+      sizeBytes: 0,
+      sourceKey: 'none',
+      container: null,
+      codec: null,
+      width: c.width,
+      height: c.height,
+      rotationDeg: 0,
+      playbackFps: c.playbackFps,
+      captureFps: c.captureFps,
+      slowMotion: c.captureFps > c.playbackFps + 1e-6,
+      frameCount: c.frameCount,
+      frameWidth: null,
+      frameHeight: null,
+      frameNamePattern: null,
+      strip: null,
+      status: 'ready',
+      failureReason: null,
+    },
+    { transaction },
+  );
+  const input = calibrationInputSchema.parse(track.calibration);
+  await Calibration.create({ clubId, clipId: clip.id, input, ...calibrationValues(input), supersededAt: null }, { transaction });
+  const row = await Flight.create(
+    {
+      clubId,
+      clipId: clip.id,
+      athleteProfileId: athletes.get(block.athlete)!,
+      action: block.action,
+      ballId: block.ballId,
+      frameStart: track.frameStart,
+      frameEnd: track.frameEnd,
+      status: 'traced',
+      attentionReason: null,
+      notes: null,
+    },
+    { transaction },
+  );
+  await insertPoints(row.id, track.points, transaction);
+  await enqueue({ clubId, type: 'flight.fit', payload: { flightId: row.id }, clipId: clip.id, flightId: row.id }, transaction);
+}
+
 async function insertSession(
   clubId: number,
   plan: DemoSessionPlan,
@@ -173,6 +229,7 @@ async function insertSession(
     await enqueue({ clubId, type: 'flight.fit', payload: { flightId: row.id }, clipId: clip.id, flightId: row.id }, transaction);
     seeded.push({ clipId: clip.id, videoPath: r.videoPath, sourceKey: clip.sourceKey });
   }
+  for (const track of seededTracks(plan)) await insertTrack(clubId, session.id, track, athletes, transaction);
   return seeded;
 }
 
@@ -198,7 +255,8 @@ export async function seed(transaction: Transaction): Promise<string> {
   if (!club) return 'no demo club, so no demo flights';
   const missing: DemoSessionPlan[] = [];
   for (const plan of DEMO_SESSIONS) {
-    const found = await Session.findOne({ where: { clubId: club.id, venue: plan.venue, date: plan.date }, transaction });
+    // By venue alone: the demo's dates count back from the day it is seeded, so they differ on every run.
+    const found = await Session.findOne({ where: { clubId: club.id, venue: plan.venue }, transaction });
     if (!found) missing.push(plan);
   }
   if (missing.length === 0) return 'demo sessions, clips and flights already present';
@@ -210,7 +268,7 @@ export async function seed(transaction: Transaction): Promise<string> {
   }
 
   const athletes = new Map<string, number>();
-  for (const name of new Set(missing.flatMap((s) => s.flights.map((f) => f.athlete)))) {
+  for (const name of new Set(missing.flatMap((s) => [...s.flights.map((f) => f.athlete), ...s.blocks.map((b) => b.athlete)]))) {
     const profile = await athleteProfile(club.id, name, transaction);
     if (!profile) return `demo flights skipped: the demo athlete "${name}" is missing from the club`;
     athletes.set(name, profile.id);
@@ -231,11 +289,12 @@ export async function seed(transaction: Transaction): Promise<string> {
     }
 
     await ensureDefaultActions(club.id, transaction);
-    if (missing.some((s) => s.flights.some((f) => f.action === DEMO_CUSTOM_ACTION.key))) {
-      const existing = await FlightAction.findOne({ where: { clubId: club.id, key: DEMO_CUSTOM_ACTION.key }, transaction });
+    for (const custom of DEMO_CUSTOM_ACTIONS) {
+      if (!missing.some((s) => [...s.flights, ...s.blocks].some((f) => f.action === custom.key))) continue;
+      const existing = await FlightAction.findOne({ where: { clubId: club.id, key: custom.key }, transaction });
       if (!existing) {
         const last = (await FlightAction.max<number, FlightAction>('sortOrder', { where: { clubId: club.id }, transaction })) ?? 0;
-        await FlightAction.create({ clubId: club.id, key: DEMO_CUSTOM_ACTION.key, label: DEMO_CUSTOM_ACTION.label, sortOrder: last + 10 }, { transaction });
+        await FlightAction.create({ clubId: club.id, key: custom.key, label: custom.label, sortOrder: last + 10 }, { transaction });
       }
     }
 
@@ -245,8 +304,13 @@ export async function seed(transaction: Transaction): Promise<string> {
     }
     transaction.afterCommit(() => handOver(work, seeded));
     handedOver = true;
-    const flights = rendered.length;
-    return `demo sessions seeded: ${missing.length} session(s), ${flights} clip(s), ${flights} flight(s); clip processing and fits are queued for the worker`;
+    const clips = rendered.length;
+    const tracks = missing.reduce((n, plan) => n + plan.blocks.reduce((m, b) => m + b.reps, 0), 0);
+    return (
+      `demo sessions seeded: ${missing.length} session(s), ${clips + tracks} flight(s): ${clips} rendered as clip(s) by the generator ` +
+      `(processing queued), ${tracks} seeded as traced tracks without footage (rendering every clip would slow the first start); ` +
+      `all ${clips + tracks} fits are queued for the worker`
+    );
   } finally {
     if (!handedOver) await rm(work, { recursive: true, force: true });
   }

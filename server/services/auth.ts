@@ -2,12 +2,13 @@
  * Accounts: sign-up (user + club + admin membership), password check, Google accounts, and the `Me` view.
  */
 import type { SignUpBody } from '../../shared/schemas/auth';
-import type { Me } from '../../shared/types/api';
+import { QueryTypes } from 'sequelize';
+import type { Me, Role } from '../../shared/types/api';
 import { decoyHash, hashPassword, needsRehash, verifyPassword } from '../auth/passwords';
-import { withTransaction } from '../db';
+import { sequelize, withTransaction } from '../db';
 import { ApiError } from '../http/errors';
 import { errorFields, log } from '../logger';
-import { AthleteProfile, Club, Membership, User } from '../models';
+import { Club, Membership, User } from '../models';
 import { startTrial } from './subscriptions';
 
 export type SessionUser = Express.User;
@@ -115,24 +116,41 @@ export async function findOrCreateGoogleUser(identity: GoogleIdentity): Promise<
   });
 }
 
-/** The signed-in user with every club membership (sorted by club name) and athlete profile. */
-export async function loadMe(userId: number): Promise<Me | null> {
-  const user = await User.findByPk(userId);
-  if (!user) return null;
-  const memberships = await Membership.findAll({
-    where: { userId },
-    include: [{ model: Club, as: 'club', attributes: ['id', 'name'] }],
+/**
+ * The user of a session (passport's deserializeUser runs it on every signed-in request): one plain
+ * SELECT by primary key, no model instance.
+ */
+export async function findSessionUser(userId: number): Promise<SessionUser | null> {
+  const [row] = await sequelize.query<SessionUser>('SELECT id, email, display_name AS displayName FROM users WHERE id = ?', {
+    type: QueryTypes.SELECT,
+    replacements: [userId],
   });
-  const profiles = await AthleteProfile.findAll({ where: { userId }, attributes: ['id', 'clubId'] });
-  const profileByClub = new Map(profiles.map((p) => [p.clubId, p.id]));
+  return row ? { id: Number(row.id), email: row.email, displayName: row.displayName } : null;
+}
+
+/**
+ * The signed-in user with every club membership (sorted by club name) and athlete profile, in one query
+ * for the memberships; `known` is the user as the session already loaded them (saves a read).
+ */
+export async function loadMe(userId: number, known?: SessionUser): Promise<Me | null> {
+  const user = known ?? (await findSessionUser(userId));
+  if (!user) return null;
+  const rows = await sequelize.query<{ clubId: number; clubName: string; role: Role; athleteProfileId: number | null }>(
+    `SELECT m.club_id AS clubId, c.name AS clubName, m.role AS role, p.id AS athleteProfileId
+       FROM memberships m
+       JOIN clubs c ON c.id = m.club_id
+       LEFT JOIN athlete_profiles p ON p.club_id = m.club_id AND p.user_id = m.user_id
+      WHERE m.user_id = ?`,
+    { type: QueryTypes.SELECT, replacements: [userId] },
+  );
   return {
     user: { id: user.id, email: user.email, displayName: user.displayName },
-    memberships: memberships
-      .map((m) => ({
-        clubId: m.clubId,
-        clubName: m.club?.name ?? '',
-        role: m.role,
-        athleteProfileId: profileByClub.get(m.clubId) ?? null,
+    memberships: rows
+      .map((r) => ({
+        clubId: Number(r.clubId),
+        clubName: r.clubName ?? '',
+        role: r.role,
+        athleteProfileId: r.athleteProfileId === null ? null : Number(r.athleteProfileId),
       }))
       .sort((a, b) => a.clubName.localeCompare(b.clubName) || a.clubId - b.clubId),
   };

@@ -8,7 +8,8 @@ import { extname, join } from 'node:path';
 import type { Readable } from 'node:stream';
 import { Op, QueryTypes } from 'sequelize';
 import type { ErrorCode } from '../../shared/errors';
-import type { Clip as ClipDto, ClipPatch, ClipStatus, ClipUploadFields, JobSummary } from '../../shared/schemas/clip';
+import type { Clip as ClipDto, ClipListQuery, ClipPatch, ClipStatus, ClipUploadFields, JobSummary } from '../../shared/schemas/clip';
+import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
 import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
@@ -100,18 +101,29 @@ export async function toClipDtos(club: ClubContext, clips: Clip[]): Promise<Clip
   });
 }
 
-export async function listClips(club: ClubContext, query: { sessionId?: number; status?: ClipStatus }): Promise<ClipDto[]> {
+async function clipWhere(club: ClubContext, query: { sessionId?: number; status?: ClipStatus }): Promise<Record<string | symbol, unknown>> {
   const where: Record<string | symbol, unknown> = { clubId: club.id };
   if (query.sessionId) where.sessionId = query.sessionId;
   if (query.status) where.status = query.status;
   if (club.role === 'athlete') where.id = { [Op.in]: await athleteClipIds(club) };
-  const clips = await Clip.findAll({ where, order: [['id', 'ASC']] });
-  return toClipDtos(club, clips);
+  return where;
 }
 
+/** One page of the clips the caller may see, oldest first, and how many there are in all. */
+export async function listClips(club: ClubContext, query: ClipListQuery): Promise<{ data: ClipDto[]; meta: PageMeta }> {
+  const where = await clipWhere(club, query);
+  const [total, clips] = await Promise.all([
+    Clip.count({ where }),
+    Clip.findAll({ where, order: [['id', 'ASC']], limit: query.pageSize, offset: pageOffset(query) }),
+  ]);
+  return { data: await toClipDtos(club, clips), meta: { page: query.page, pageSize: query.pageSize, total } };
+}
+
+/** Every clip of a session the caller may see (a session holds a day's clips, a short list). */
 export async function listSessionClips(club: ClubContext, sessionId: number): Promise<ClipDto[]> {
   const session = await findVisibleSession(club, sessionId);
-  return listClips(club, { sessionId: session.id });
+  const clips = await Clip.findAll({ where: await clipWhere(club, { sessionId: session.id }), order: [['id', 'ASC']] });
+  return toClipDtos(club, clips);
 }
 
 export async function getClip(club: ClubContext, clipId: number): Promise<ClipDto> {

@@ -2,7 +2,8 @@
  * Club profile, Overview counts (members and profiles here, the other resources from their services),
  * members and their roles.
  */
-import { fn, col, type Transaction } from 'sequelize';
+import { fn, col, Op, type Transaction } from 'sequelize';
+import { pageOffset, type PageMeta, type PaginationQuery } from '../../shared/schemas/pagination';
 import type { ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary } from '../../shared/schemas/club';
 import type { Role } from '../../shared/types/api';
 import { withTransaction } from '../db';
@@ -48,32 +49,35 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
 }
 
 export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
-  const club = await findClub(clubCtx.id);
-  const byRole = (await Membership.findAll({
-    where: { clubId: club.id },
-    attributes: ['role', [fn('COUNT', col('id')), 'n']],
-    group: ['role'],
-    raw: true,
-  })) as unknown as { role: Role; n: number | string }[];
+  // The counts are independent: one round trip's wait for all of them.
+  const [club, byRole, athleteProfiles, sessions, clips, flights, flightsNeedingAttention, clipsProcessing] = await Promise.all([
+    findClub(clubCtx.id),
+    Membership.findAll({
+      where: { clubId: clubCtx.id },
+      attributes: ['role', [fn('COUNT', col('id')), 'n']],
+      group: ['role'],
+      raw: true,
+    }) as unknown as Promise<{ role: Role; n: number | string }[]>,
+    clubCtx.role === 'athlete' ? Promise.resolve(clubCtx.athleteProfileId === null ? 0 : 1) : AthleteProfile.count({ where: { clubId: clubCtx.id } }),
+    // Each resource counts what the caller may see of it (an athlete: their own).
+    countSessions(clubCtx),
+    countClips(clubCtx),
+    countFlights(clubCtx),
+    countFlights(clubCtx, 'needs_attention'),
+    countProcessingClips(clubCtx),
+  ]);
   const roleCount = (role: Role) => Number(byRole.find((r) => r.role === role)?.n ?? 0);
-  const athleteProfiles =
-    clubCtx.role === 'athlete'
-      ? clubCtx.athleteProfileId === null
-        ? 0
-        : 1
-      : await AthleteProfile.count({ where: { clubId: club.id } });
   const counts: ClubOverview['counts'] = {
     members: roleCount('admin') + roleCount('coach') + roleCount('athlete'),
     admins: roleCount('admin'),
     coaches: roleCount('coach'),
     athletes: roleCount('athlete'),
     athleteProfiles,
-    // Each resource counts what the caller may see of it (an athlete: their own).
-    sessions: await countSessions(clubCtx),
-    clips: await countClips(clubCtx),
-    flights: await countFlights(clubCtx),
-    flightsNeedingAttention: await countFlights(clubCtx, 'needs_attention'),
-    clipsProcessing: await countProcessingClips(clubCtx),
+    sessions,
+    clips,
+    flights,
+    flightsNeedingAttention,
+    clipsProcessing,
   };
   return {
     club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
@@ -82,13 +86,15 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
   };
 }
 
-async function memberSummaries(clubId: number, where: { id?: number } = {}): Promise<MemberSummary[]> {
+async function memberSummaries(clubId: number, where: { id?: number } = {}, page?: PaginationQuery): Promise<MemberSummary[]> {
   const memberships = await Membership.findAll({
     where: { clubId, ...where },
     include: [{ model: User, as: 'user', attributes: ['id', 'email', 'displayName'] }],
-    order: [['id', 'ASC']],
+    order: page ? [[{ model: User, as: 'user' }, 'displayName', 'ASC'], ['id', 'ASC']] : [['id', 'ASC']],
+    ...(page ? { limit: page.pageSize, offset: pageOffset(page) } : {}),
   });
-  const profiles = await AthleteProfile.findAll({ where: { clubId }, attributes: ['id', 'userId'] });
+  const userIds = memberships.map((m) => m.userId);
+  const profiles = userIds.length === 0 ? [] : await AthleteProfile.findAll({ where: { clubId, userId: { [Op.in]: userIds } }, attributes: ['id', 'userId'] });
   const profileByUser = new Map(profiles.filter((p) => p.userId !== null).map((p) => [p.userId as number, p.id]));
   return memberships.map((m) => ({
     id: m.id,
@@ -100,9 +106,10 @@ async function memberSummaries(clubId: number, where: { id?: number } = {}): Pro
   }));
 }
 
-export async function listMembers(clubId: number): Promise<MemberSummary[]> {
-  const members = await memberSummaries(clubId);
-  return members.sort((a, b) => a.displayName.localeCompare(b.displayName) || a.id - b.id);
+/** One page of the club's members by name, and how many there are in all. */
+export async function listMembers(clubId: number, page: PaginationQuery): Promise<{ data: MemberSummary[]; meta: PageMeta }> {
+  const [total, data] = await Promise.all([Membership.count({ where: { clubId } }), memberSummaries(clubId, {}, page)]);
+  return { data, meta: { page: page.page, pageSize: page.pageSize, total } };
 }
 
 /** Refuses to demote or remove the club's only admin (the club would have nobody to run it). */

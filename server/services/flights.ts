@@ -2,7 +2,7 @@
  * Flights inside clips, and each club's action list. Coaches and admins manage them; an athlete sees
  * only their own flights (`athleteProfileId`, as `scopeAthlete()` gives it).
  */
-import { Op, QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes, type Transaction } from 'sequelize';
 import type { z } from 'zod';
 import {
   DEFAULT_FLIGHT_ACTIONS,
@@ -10,17 +10,21 @@ import {
   type flightActionPatchSchema,
   type Flight as FlightDto,
   type FlightAction as FlightActionDto,
+  type FitSummary,
+  type FitWarning,
   type FlightDetail,
   type FlightInput,
+  type FlightListQuery,
+  type FlightSort,
   type FlightPatch,
   type FlightStatus,
 } from '../../shared/schemas/flight';
+import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
 import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
+import { AthleteProfile, Clip, Flight, FlightAction, type Job } from '../models';
 import { currentCalibration, toCalibrationDto } from './calibration';
-import { latestFits, toFitSummary } from './fits';
 import { latestJobs, toJobSummary } from './jobs';
 import { enqueueRefits } from './refits';
 import { pointsOf } from './tracks';
@@ -118,75 +122,242 @@ async function checkAthlete(clubId: number, athleteId: number, transaction?: Tra
   return profile;
 }
 
-async function sessionIdsOf(clipIds: number[]): Promise<Map<number, number>> {
-  const out = new Map<number, number>();
-  if (clipIds.length === 0) return out;
-  const clips = await Clip.findAll({ where: { id: { [Op.in]: clipIds } }, attributes: ['id', 'sessionId'] });
-  for (const c of clips) out.set(c.id, c.sessionId);
-  return out;
+interface FlightListRow {
+  id: number;
+  sessionId: number;
+  athleteName: string | null;
+  pointCount: number;
+  fitId: number | null;
+  fitModel: string | null;
+  fitStatus: 'fitted' | 'needs_attention' | null;
+  fitCreatedAt: Date | string | null;
+  fitSpeed: number | null;
+  fitAngle: number | null;
+  fitCarry: number | null;
+  fitCd: string | number | null;
+  fitCdError: string | number | null;
+  fitStandardCarry: string | number | null;
+  fitWarnings: string | FitWarning[] | null;
 }
 
-export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
-  const ids = flights.map((f) => f.id);
-  const [athletes, sessions, fits, jobs, counts] = await Promise.all([
-    AthleteProfile.findAll({ where: { id: { [Op.in]: [...new Set(flights.map((f) => f.athleteProfileId))] } }, attributes: ['id', 'displayName'] }),
-    sessionIdsOf([...new Set(flights.map((f) => f.clipId))]),
-    latestFits(ids),
+function finiteOrNull(value: unknown): number | null {
+  const n = typeof value === 'string' ? Number(value) : value;
+  return typeof n === 'number' && Number.isFinite(n) ? n : null;
+}
+
+function fitSummaryOf(row: FlightListRow): FitSummary | null {
+  if (row.fitId === null) return null;
+  const warnings = typeof row.fitWarnings === 'string' ? (JSON.parse(row.fitWarnings) as FitWarning[]) : (row.fitWarnings ?? []);
+  return {
+    id: Number(row.fitId),
+    model: row.fitModel ?? '',
+    status: row.fitStatus ?? 'fitted',
+    createdAt: new Date(row.fitCreatedAt ?? 0).toISOString(),
+    launchSpeedMps: finiteOrNull(row.fitSpeed),
+    launchAngleDeg: finiteOrNull(row.fitAngle),
+    carryM: finiteOrNull(row.fitCarry),
+    cd: finiteOrNull(row.fitCd),
+    cdError: finiteOrNull(row.fitCdError),
+    standardCarryM: finiteOrNull(row.fitStandardCarry),
+    warnings,
+  };
+}
+
+/** A flight's own columns, as the model or the list's query gives them. */
+type FlightCore = Pick<
+  Flight,
+  'id' | 'clubId' | 'clipId' | 'athleteProfileId' | 'action' | 'ballId' | 'frameStart' | 'frameEnd' | 'status' | 'attentionReason' | 'notes'
+> & { createdAt: Date | string; updatedAt: Date | string };
+
+/**
+ * The list view of flights by id, in the order of `ids`: one query for the flight with its athlete's name,
+ * session, point count and the latest fit's summary (through flights.latest_fit_id, reading only the
+ * summary's fields of the fit's JSON), and one for the jobs. Lists of any length cost the same two round trips.
+ */
+export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
+  if (ids.length === 0) return [];
+  const [rows, jobs] = await Promise.all([
+    sequelize.query<FlightListRow & FlightCore>(
+      `SELECT f.id, f.club_id AS clubId, f.clip_id AS clipId, f.athlete_profile_id AS athleteProfileId, f.action, f.ball_id AS ballId,
+              f.frame_start AS frameStart, f.frame_end AS frameEnd, f.status, f.attention_reason AS attentionReason, f.notes,
+              f.created_at AS createdAt, f.updated_at AS updatedAt,
+              c.session_id AS sessionId, a.display_name AS athleteName,
+              (SELECT COUNT(*) FROM track_points t WHERE t.flight_id = f.id) AS pointCount,
+              lf.id AS fitId, lf.model AS fitModel, lf.status AS fitStatus, lf.created_at AS fitCreatedAt,
+              lf.launch_speed_mps AS fitSpeed, lf.launch_angle_deg AS fitAngle, lf.carry_m AS fitCarry,
+              JSON_VALUE(lf.result, '$.cd') AS fitCd, JSON_VALUE(lf.result, '$.cdError') AS fitCdError,
+              JSON_VALUE(lf.result, '$.standardCarry') AS fitStandardCarry, lf.warnings AS fitWarnings
+         FROM flights f
+         JOIN clips c ON c.id = f.clip_id
+         LEFT JOIN athlete_profiles a ON a.id = f.athlete_profile_id
+         LEFT JOIN fits lf ON lf.id = f.latest_fit_id
+        WHERE f.id IN (:ids)`,
+      { type: QueryTypes.SELECT, replacements: { ids } },
+    ),
     latestJobs('flightId', ids, ['flight.follow', 'flight.fit']),
-    ids.length === 0
-      ? Promise.resolve([] as { id: number; n: number }[])
-      : sequelize.query<{ id: number; n: number }>('SELECT flight_id AS id, COUNT(*) AS n FROM track_points WHERE flight_id IN (:ids) GROUP BY flight_id', {
-          type: QueryTypes.SELECT,
-          replacements: { ids },
-        }),
   ]);
-  const names = new Map(athletes.map((a) => [a.id, a.displayName]));
-  const pointCounts = new Map(counts.map((r) => [Number(r.id), Number(r.n)]));
-  return flights.map((f) => {
-    const fit = fits.get(f.id);
-    const job = jobs.get(f.id);
-    return {
-      id: f.id,
-      clubId: f.clubId,
-      sessionId: sessions.get(f.clipId) ?? 0,
-      clipId: f.clipId,
-      athleteId: f.athleteProfileId,
-      athleteName: names.get(f.athleteProfileId) ?? '',
-      action: f.action,
-      ballId: f.ballId,
-      frameStart: f.frameStart,
-      frameEnd: f.frameEnd,
-      status: f.status,
-      attentionReason: f.attentionReason ?? null,
-      notes: f.notes ?? null,
-      pointCount: pointCounts.get(f.id) ?? 0,
-      latestFit: fit ? toFitSummary(fit) : null,
-      job: job ? toJobSummary(job) : null,
-      createdAt: f.createdAt.toISOString(),
-      updatedAt: f.updatedAt.toISOString(),
-    };
+  const byId = new Map(rows.map((r) => [Number(r.id), r]));
+  return ids.flatMap((id) => {
+    const row = byId.get(id);
+    return row ? [toDto({ ...row, id, clubId: Number(row.clubId), clipId: Number(row.clipId), athleteProfileId: Number(row.athleteProfileId) }, row, jobs.get(id))] : [];
   });
 }
 
+function toDto(f: FlightCore, row: FlightListRow | undefined, job: Job | undefined): FlightDto {
+  return {
+    id: f.id,
+    clubId: f.clubId,
+    sessionId: row ? Number(row.sessionId) : 0,
+    clipId: f.clipId,
+    athleteId: f.athleteProfileId,
+    athleteName: row?.athleteName ?? '',
+    action: f.action,
+    ballId: f.ballId,
+    frameStart: Number(f.frameStart),
+    frameEnd: Number(f.frameEnd),
+    status: f.status,
+    attentionReason: f.attentionReason ?? null,
+    notes: f.notes ?? null,
+    pointCount: row ? Number(row.pointCount) : 0,
+    latestFit: row ? fitSummaryOf(row) : null,
+    job: job ? toJobSummary(job) : null,
+    createdAt: new Date(f.createdAt).toISOString(),
+    updatedAt: new Date(f.updatedAt).toISOString(),
+  };
+}
+
+/** The list view of flights the caller holds as models (their own columns as the models have them). */
+export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
+  const read = await flightDtosByIds(flights.map((f) => f.id));
+  const byId = new Map(read.map((d) => [d.id, d]));
+  return flights.map((f) => {
+    const d = byId.get(f.id);
+    // The model's own columns win: the caller may hold changes this read does not see yet.
+    return { ...toDto(f, undefined, undefined), ...(d ? { sessionId: d.sessionId, athleteName: d.athleteName, pointCount: d.pointCount, latestFit: d.latestFit, job: d.job } : {}) };
+  });
+}
+
+/** Filters of the flights list (every one optional); the paged list adds page, size and order. */
 export interface FlightQuery {
   sessionId?: number;
   clipId?: number;
   athleteId?: number;
   status?: FlightStatus;
+  action?: string;
+  ballId?: string;
 }
 
-export async function listFlights(club: ClubContext, query: FlightQuery): Promise<FlightDto[]> {
-  const where: Record<string | symbol, unknown> = { ...flightScope(club) };
-  if (query.clipId) where.clipId = query.clipId;
-  if (query.athleteId && club.role !== 'athlete') where.athleteProfileId = query.athleteId;
-  if (query.athleteId && club.role === 'athlete' && query.athleteId !== club.athleteProfileId) return [];
-  if (query.status) where.status = query.status;
-  if (query.sessionId) {
-    const clips = await Clip.findAll({ where: { clubId: club.id, sessionId: query.sessionId }, attributes: ['id'] });
-    where.clipId = query.clipId ? (clips.some((c) => c.id === query.clipId) ? query.clipId : 0) : { [Op.in]: clips.map((c) => c.id) };
+interface SortSql {
+  expr: string;
+  /** The joins the expression needs beyond `flights f`. */
+  joins: ('clip' | 'session' | 'athlete')[];
+  /** True where flights without a fit have no value: they go last in either direction. */
+  nullable: boolean;
+}
+
+const JOIN_SQL = {
+  clip: 'JOIN clips c ON c.id = f.clip_id',
+  session: 'JOIN sessions s ON s.id = c.session_id',
+  athlete: 'JOIN athlete_profiles a ON a.id = f.athlete_profile_id',
+} as const;
+
+/**
+ * ORDER BY expression per sort. The fit figures are the latest fit's, copied onto the flight (migration 0320)
+ * with an index each, so a sorted page reads only its rows.
+ */
+const SORT_SQL: Record<FlightSort, SortSql> = {
+  recent: { expr: 'f.id', joins: [], nullable: false },
+  date: { expr: 's.date', joins: ['clip', 'session'], nullable: false },
+  athlete: { expr: 'a.display_name', joins: ['athlete'], nullable: false },
+  action: { expr: 'f.action', joins: [], nullable: false },
+  ball: { expr: 'f.ball_id', joins: [], nullable: false },
+  status: { expr: 'f.status', joins: [], nullable: false },
+  launchSpeed: { expr: 'f.fit_launch_speed_mps', joins: [], nullable: true },
+  launchAngle: { expr: 'f.fit_launch_angle_deg', joins: [], nullable: true },
+  carry: { expr: 'f.fit_carry_m', joins: [], nullable: true },
+  standardCarry: { expr: 'f.fit_standard_carry_m', joins: [], nullable: true },
+};
+
+/** WHERE clause and replacements of the list's filters, on `flights f JOIN clips c`. */
+function flightFilterSql(club: ClubContext, query: FlightQuery): { where: string; replacements: Record<string, unknown> } | null {
+  const scope = flightScope(club);
+  const parts = ['f.club_id = :clubId'];
+  const replacements: Record<string, unknown> = { clubId: scope.clubId };
+  if (scope.athleteProfileId !== undefined) {
+    if (query.athleteId && query.athleteId !== scope.athleteProfileId) return null;
+    parts.push('f.athlete_profile_id = :athleteId');
+    replacements.athleteId = scope.athleteProfileId;
+  } else if (query.athleteId) {
+    parts.push('f.athlete_profile_id = :athleteId');
+    replacements.athleteId = query.athleteId;
   }
-  const flights = await Flight.findAll({ where, order: [['id', 'ASC']] });
-  return toFlightDtos(flights);
+  const equalities: [column: string, name: keyof FlightQuery][] = [
+    ['f.clip_id', 'clipId'],
+    ['c.session_id', 'sessionId'],
+    ['f.status', 'status'],
+    ['f.action', 'action'],
+    ['f.ball_id', 'ballId'],
+  ];
+  for (const [column, name] of equalities) {
+    if (query[name] === undefined) continue;
+    parts.push(`${column} = :${name}`);
+    replacements[name] = query[name];
+  }
+  return { where: parts.join(' AND '), replacements };
+}
+
+/**
+ * One page of the flights the caller may see that pass the filters, in the asked order (ties by id), and
+ * the number of all that pass. Filters, order and paging run in the database.
+ */
+export async function listFlightsPage(club: ClubContext, query: FlightListQuery): Promise<{ data: FlightDto[]; meta: PageMeta }> {
+  const meta = { page: query.page, pageSize: query.pageSize, total: 0 };
+  const filter = flightFilterSql(club, query);
+  if (!filter) return { data: [], meta };
+  const sort = SORT_SQL[query.sort];
+  const joins = new Set(sort.joins);
+  if (query.sessionId) joins.add('clip');
+  const from = ['FROM flights f', ...(['clip', 'session', 'athlete'] as const).filter((j) => joins.has(j)).map((j) => JOIN_SQL[j])].join(' ');
+  const select = <T extends object>(sql: string, extra: Record<string, unknown> = {}) =>
+    sequelize.query<T>(sql, { type: QueryTypes.SELECT, replacements: { ...filter.replacements, ...extra } });
+  const idsOf = async (where: string, order: string, limit: number, offset: number) =>
+    (await select<{ id: number }>(`SELECT f.id ${from} WHERE ${filter.where}${where} ORDER BY ${order} LIMIT :limit OFFSET :offset`, { limit, offset })).map((r) =>
+      Number(r.id),
+    );
+  const offset = pageOffset(query);
+  const pageIds = async (): Promise<number[]> => {
+    if (!sort.nullable || query.order !== 'asc') {
+      // Going down, MariaDB sorts NULL last by itself.
+      const dir = query.order === 'asc' ? 'ASC' : 'DESC';
+      return idsOf('', `${sort.expr} ${dir}, f.id ${dir}`, query.pageSize, offset);
+    }
+    // Note: MariaDB sorts NULL first going up; the flights without the figure are read after the others
+    // instead, so that each part still walks its index in order.
+    const [counted] = await select<{ n: number }>(`SELECT COUNT(*) AS n ${from} WHERE ${filter.where} AND ${sort.expr} IS NOT NULL`);
+    const valued = Number(counted?.n ?? 0);
+    const ids = offset < valued ? await idsOf(` AND ${sort.expr} IS NOT NULL`, `${sort.expr} ASC, f.id ASC`, query.pageSize, offset) : [];
+    if (ids.length < query.pageSize) {
+      ids.push(...(await idsOf(` AND ${sort.expr} IS NULL`, 'f.id ASC', query.pageSize - ids.length, Math.max(0, offset - valued))));
+    }
+    return ids;
+  };
+  const [ids, [counted]] = await Promise.all([
+    pageIds(),
+    select<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`),
+  ]);
+  meta.total = Number(counted?.n ?? 0);
+  return { data: await flightDtosByIds(ids), meta };
+}
+
+/** Every flight the caller may see that passes the filters, oldest first (for a clip's own list and the services). */
+export async function listFlights(club: ClubContext, query: FlightQuery): Promise<FlightDto[]> {
+  const filter = flightFilterSql(club, query);
+  if (!filter) return [];
+  const rows = await sequelize.query<{ id: number }>(
+    `SELECT f.id FROM flights f ${JOIN_SQL.clip} WHERE ${filter.where} ORDER BY f.id ASC`,
+    { type: QueryTypes.SELECT, replacements: filter.replacements },
+  );
+  return flightDtosByIds(rows.map((r) => Number(r.id)));
 }
 
 export async function listClipFlights(club: ClubContext, clipId: number): Promise<FlightDto[]> {

@@ -4,6 +4,7 @@
  */
 import { Op, QueryTypes, type WhereOptions } from 'sequelize';
 import { CONDITION_KEYS, type Conditions, type Session as SessionDto, type SessionInput, type SessionListQuery, type SessionPatch } from '../../shared/schemas/session';
+import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
 import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
@@ -63,15 +64,22 @@ function toDto(session: Session, counts: Counts): SessionDto {
   };
 }
 
-export async function listSessions(club: ClubContext, query: SessionListQuery): Promise<SessionDto[]> {
+/** One page of the sessions the caller may see, newest first, and how many there are in all. */
+export async function listSessions(club: ClubContext, query: SessionListQuery): Promise<{ data: SessionDto[]; meta: PageMeta }> {
   const where: WhereOptions<Session>[] = [{ clubId: club.id }];
   if (query.from) where.push({ date: { [Op.gte]: query.from } });
   if (query.to) where.push({ date: { [Op.lte]: query.to } });
   if (query.venue) where.push({ venue: { [Op.like]: `%${query.venue.replace(/[\\%_]/g, (c) => `\\${c}`)}%` } });
   if (club.role === 'athlete') where.push({ id: { [Op.in]: await athleteSessionIds(club) } });
-  const sessions = await Session.findAll({ where: { [Op.and]: where }, order: [['date', 'DESC'], ['id', 'DESC']] });
+  const [total, sessions] = await Promise.all([
+    Session.count({ where: { [Op.and]: where } }),
+    Session.findAll({ where: { [Op.and]: where }, order: [['date', 'DESC'], ['id', 'DESC']], limit: query.pageSize, offset: pageOffset(query) }),
+  ]);
   const counts = await countsFor(club, sessions.map((s) => s.id));
-  return sessions.map((s) => toDto(s, counts.get(s.id) ?? { clipCount: 0, flightCount: 0 }));
+  return {
+    data: sessions.map((s) => toDto(s, counts.get(s.id) ?? { clipCount: 0, flightCount: 0 })),
+    meta: { page: query.page, pageSize: query.pageSize, total },
+  };
 }
 
 export async function getSession(club: ClubContext, sessionId: number): Promise<SessionDto> {

@@ -3,6 +3,7 @@
  * Times derive from the capture rate: t = frame / captureFps, frame indices 0-based.
  */
 import { z } from 'zod';
+import { paginationQuerySchema } from './pagination';
 import type { Calibration } from './calibration';
 
 export const CLIP_STATUSES = ['processing', 'ready', 'failed'] as const;
@@ -45,10 +46,11 @@ export const clipPatchSchema = z
   .strict();
 export type ClipPatch = z.infer<typeof clipPatchSchema>;
 
-export const clipListQuerySchema = z.object({
+export const clipListQuerySchema = paginationQuerySchema.extend({
   sessionId: z.coerce.number().int().positive().optional(),
   status: z.enum(CLIP_STATUSES).optional(),
 });
+export type ClipListQuery = z.output<typeof clipListQuerySchema>;
 
 export interface JobSummary {
   id: number;

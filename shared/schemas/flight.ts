@@ -5,6 +5,7 @@ import { z } from 'zod';
 import type { JobSummary } from './clip';
 import type { Calibration } from './calibration';
 import type { TrackPoint } from './track';
+import { paginationQuerySchema } from './pagination';
 
 /** Status words of PRODUCT.md; `needs_attention` is shown as "needs attention". */
 export const FLIGHT_STATUSES = ['uploaded', 'traced', 'fitted', 'reviewed', 'needs_attention'] as const;
@@ -70,12 +71,21 @@ export const flightPatchSchema = z
   .refine(rangeOk, rangeIssue);
 export type FlightPatch = z.infer<typeof flightPatchSchema>;
 
-export const flightListQuerySchema = z.object({
+/** Orders of the flights list on the server: `recent` is newest recorded first (the default), the rest by column. */
+export const FLIGHT_SORTS = ['recent', 'date', 'athlete', 'action', 'ball', 'status', 'launchSpeed', 'launchAngle', 'carry', 'standardCarry'] as const;
+export type FlightSort = (typeof FLIGHT_SORTS)[number];
+
+export const flightListQuerySchema = paginationQuerySchema.extend({
   sessionId: z.coerce.number().int().positive().optional(),
   clipId: z.coerce.number().int().positive().optional(),
   athleteId: z.coerce.number().int().positive().optional(),
   status: z.enum(FLIGHT_STATUSES).optional(),
+  action: actionKeySchema.optional(),
+  ballId: z.string().trim().min(1).max(64).optional(),
+  sort: z.enum(FLIGHT_SORTS, { error: `sort must be one of ${FLIGHT_SORTS.join(', ')}.` }).default('recent'),
+  order: z.enum(['asc', 'desc'], { error: 'order must be asc or desc.' }).default('desc'),
 });
+export type FlightListQuery = z.output<typeof flightListQuerySchema>;
 
 export const fitRequestSchema = z.object({
   model: z.string().trim().min(1).max(40).optional(),

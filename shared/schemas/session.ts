@@ -3,6 +3,7 @@
  * Every quantity is SI (temperature in kelvin); the client converts for display.
  */
 import { z } from 'zod';
+import { paginationQuerySchema } from './pagination';
 
 const nullableNumber = (min: number, max: number, what: string) =>
   z
@@ -87,12 +88,12 @@ export type SessionInput = z.infer<typeof sessionInputSchema>;
 export const sessionPatchSchema = sessionInputSchema.partial();
 export type SessionPatch = z.infer<typeof sessionPatchSchema>;
 
-export const sessionListQuerySchema = z.object({
+export const sessionListQuerySchema = paginationQuerySchema.extend({
   from: isoDate.optional(),
   to: isoDate.optional(),
   venue: z.string().max(120).optional(),
 });
-export type SessionListQuery = z.infer<typeof sessionListQuerySchema>;
+export type SessionListQuery = z.output<typeof sessionListQuerySchema>;
 
 export interface Session {
   id: number;

@@ -3,6 +3,7 @@ import type { Clip, ClipPatch, ClipStatus, Job } from '@shared/schemas/clip';
 import type { Calibration, CalibrationInput } from '@shared/schemas/calibration';
 import { ApiRequestError, apiUrl, getCsrfToken, http, resetCsrfToken, type RequestOptions } from './http';
 import { networkError, toApiRequestError } from './errors';
+import { fetchAllPages } from './paging';
 
 export type { Clip, ClipPatch, ClipStatus, Calibration, CalibrationInput };
 
@@ -18,7 +19,7 @@ export async function listClips(
   filters: { sessionId?: number; status?: ClipStatus } = {},
   options: RequestOptions = {},
 ): Promise<ListResponse<Clip>> {
-  return http.get<ListResponse<Clip>>(`${clubBase(clubId)}/clips`, { ...options, query: { ...filters } });
+  return fetchAllPages<Clip>(`${clubBase(clubId)}/clips`, { ...options, query: { ...filters } });
 }
 
 export async function fetchClip(clubId: number, clipId: number, options?: RequestOptions): Promise<Clip> {

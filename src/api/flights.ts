@@ -1,8 +1,9 @@
 import type { DataResponse, ListResponse } from '@shared/types/api';
 import type { Job } from '@shared/schemas/clip';
-import type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightStatus } from '@shared/schemas/flight';
+import type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightSort, FlightStatus } from '@shared/schemas/flight';
 import type { FollowBody, TrackPoint, TrackPointInput } from '@shared/schemas/track';
 import { apiUrl, http, type RequestOptions } from './http';
+import { fetchAllPages, type PageResponse } from './paging';
 
 export type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightStatus, TrackPoint, TrackPointInput };
 
@@ -19,11 +20,36 @@ export interface FlightListFilters {
   clipId?: number | null;
   athleteId?: number | null;
   status?: FlightStatus | null;
+  action?: string | null;
+  ballId?: string | null;
 }
 
-/** Every flight of the club in view that passes the filters (an athlete's answer holds only her own). */
-export async function listFlights(clubId: number, filters: FlightListFilters = {}, options: RequestOptions = {}): Promise<ListResponse<Flight>> {
-  return http.get<ListResponse<Flight>>(`${clubBase(clubId)}/flights`, { ...options, query: { ...filters } });
+/** One page of the flights list: which page, how many rows, and the server-side order. */
+export interface FlightPageRequest {
+  page: number;
+  pageSize: number;
+  sort?: FlightSort;
+  order?: 'asc' | 'desc';
+}
+
+/** Every flight of the club in view that passes the filters (an athlete's answer holds only her own), paged through. */
+export async function listFlights(
+  clubId: number,
+  filters: FlightListFilters = {},
+  options: RequestOptions = {},
+  order: Pick<FlightPageRequest, 'sort' | 'order'> = { sort: 'recent', order: 'asc' },
+): Promise<ListResponse<Flight>> {
+  return fetchAllPages<Flight>(`${clubBase(clubId)}/flights`, { ...options, query: { ...filters, ...order } });
+}
+
+/** One page of the flights that pass the filters, sorted on the server, with the total. */
+export async function listFlightsPage(
+  clubId: number,
+  filters: FlightListFilters,
+  page: FlightPageRequest,
+  options: RequestOptions = {},
+): Promise<PageResponse<Flight>> {
+  return http.get<PageResponse<Flight>>(`${clubBase(clubId)}/flights`, { ...options, query: { ...filters, ...page } });
 }
 
 /** One flight with its traced points and a summary of its clip; another athlete's flight answers 404 NOT_FOUND. */

@@ -1,13 +1,15 @@
 import type { DataResponse, Role } from '@shared/types/api';
 import type { MemberSummary } from '@shared/schemas/club';
 import { http, type RequestOptions } from './http';
+import { fetchAllPages } from './paging';
 
 export type { MemberSummary };
 
 const base = (clubId: number) => `/clubs/${clubId}/members`;
 
+/** Every member of the club by name (paged through on the server). */
 export async function fetchMembers(clubId: number, options?: RequestOptions): Promise<MemberSummary[]> {
-  return (await http.get<DataResponse<MemberSummary[]>>(base(clubId), options)).data;
+  return (await fetchAllPages<MemberSummary>(base(clubId), options)).data;
 }
 
 export async function updateMemberRole(clubId: number, memberId: number, role: Role, options?: RequestOptions): Promise<MemberSummary> {

@@ -1,6 +1,7 @@
 import type { DataResponse, ListResponse } from '@shared/types/api';
 import type { Session, SessionInput, SessionPatch } from '@shared/schemas/session';
 import { http, type RequestOptions } from './http';
+import { fetchAllPages, type PageResponse } from './paging';
 
 export type { Session, SessionInput, SessionPatch };
 
@@ -15,9 +16,23 @@ export interface SessionFilters {
 
 const base = (clubId: number) => `/clubs/${clubId}/sessions`;
 
+function sessionQuery(filters: SessionFilters) {
+  return { from: filters.from || undefined, to: filters.to || undefined, venue: filters.venue?.trim() || undefined };
+}
+
+/** Every session that passes the filters, newest first (paged through on the server). */
 export async function listSessions(clubId: number, filters: SessionFilters = {}, options: RequestOptions = {}): Promise<ListResponse<Session>> {
-  const query = { from: filters.from || undefined, to: filters.to || undefined, venue: filters.venue?.trim() || undefined };
-  return http.get<ListResponse<Session>>(base(clubId), { ...options, query });
+  return fetchAllPages<Session>(base(clubId), { ...options, query: sessionQuery(filters) });
+}
+
+/** One page of the sessions that pass the filters, with the total. */
+export async function listSessionsPage(
+  clubId: number,
+  filters: SessionFilters,
+  page: { page: number; pageSize: number },
+  options: RequestOptions = {},
+): Promise<PageResponse<Session>> {
+  return http.get<PageResponse<Session>>(base(clubId), { ...options, query: { ...sessionQuery(filters), ...page } });
 }
 
 export async function fetchSession(clubId: number, sessionId: number, options?: RequestOptions): Promise<Session> {

@@ -1,14 +1,18 @@
 import { defineStore } from 'pinia';
 import { ref, shallowRef, watch } from 'vue';
 import { fetchClub } from '@/api/clubs';
-import { deleteSession, listSessions, type Session, type SessionFilters } from '@/api/sessions';
+import { deleteSession, listSessionsPage, type Session, type SessionFilters } from '@/api/sessions';
 import { useLatestLoad } from '@/composables/use-latest-load';
 import type { UnitSystem } from '@/utils/units';
 import { useClubStore } from './club';
 
+/** Rows per page of the Sessions table, and the sizes it offers. */
+export const SESSION_PAGE_SIZES = [20, 50, 100];
+
 /**
- * The Sessions list with its filters (kept while the coach opens a session and comes back), and the club's
- * display units, which every screen of sessions, clips and tracing shows quantities in.
+ * The Sessions list, one page at a time from the server (newest first), with its filters and page (kept while
+ * the coach opens a session and comes back), and the club's display units, which every screen of sessions,
+ * clips and tracing shows quantities in.
  */
 export const useSessionsStore = defineStore('sessions', () => {
   const club = useClubStore();
@@ -16,6 +20,9 @@ export const useSessionsStore = defineStore('sessions', () => {
   const total = ref(0);
   const { loading, error, run } = useLatestLoad();
   const filters = ref<SessionFilters>({ from: null, to: null, venue: null });
+  /** Index of the first row of the page in view, and the page size. */
+  const first = ref(0);
+  const rows = ref(SESSION_PAGE_SIZES[0]!);
   const units = ref<UnitSystem>('metric');
   let unitsClubId: number | null = null;
 
@@ -23,7 +30,7 @@ export const useSessionsStore = defineStore('sessions', () => {
     const clubId = club.clubId;
     if (clubId === null) return;
     await run(async (isCurrent) => {
-      const answer = await listSessions(clubId, filters.value);
+      const answer = await listSessionsPage(clubId, filters.value, { page: Math.floor(first.value / rows.value) + 1, pageSize: rows.value });
       if (!isCurrent()) return;
       items.value = answer.data;
       total.value = answer.meta.total;
@@ -44,13 +51,25 @@ export const useSessionsStore = defineStore('sessions', () => {
     return units.value;
   }
 
-  /** Replaces one session in the list after an edit, or adds a new one. */
+  /** Shows another page (the table's paginator). */
+  function setPage(nextFirst: number, nextRows: number): void {
+    first.value = nextFirst;
+    rows.value = nextRows;
+    void load();
+  }
+
+  /** Filters changed: back to the first page. */
+  function applyFilters(next: SessionFilters): void {
+    filters.value = next;
+    first.value = 0;
+    void load();
+  }
+
+  /** Replaces one session in the page after an edit; a new one (or a changed date) reloads the page from the server. */
   function upsert(session: Session): void {
-    const isNew = !items.value.some((s) => s.id === session.id);
-    const rest = items.value.filter((s) => s.id !== session.id);
-    // Same order as the server: newest date first.
-    items.value = [session, ...rest].sort((a, b) => (a.date === b.date ? b.id - a.id : b.date.localeCompare(a.date)));
-    if (isNew) total.value += 1;
+    const current = items.value.find((s) => s.id === session.id);
+    if (current && current.date === session.date) items.value = items.value.map((s) => (s.id === session.id ? session : s));
+    else void load();
   }
 
   async function remove(session: Session, confirm: boolean): Promise<void> {
@@ -59,6 +78,8 @@ export const useSessionsStore = defineStore('sessions', () => {
     await deleteSession(clubId, session.id, confirm);
     items.value = items.value.filter((s) => s.id !== session.id);
     total.value = Math.max(0, total.value - 1);
+    // The next page's first session moves up into this one.
+    void load();
   }
 
   // Another club in view: nothing of the previous club may stay.
@@ -67,10 +88,11 @@ export const useSessionsStore = defineStore('sessions', () => {
     () => {
       items.value = [];
       total.value = 0;
+      first.value = 0;
       unitsClubId = null;
       units.value = 'metric';
     },
   );
 
-  return { items, total, loading, error, filters, units, load, ensureUnits, upsert, remove };
+  return { items, total, loading, error, filters, first, rows, units, load, ensureUnits, setPage, applyFilters, upsert, remove };
 });

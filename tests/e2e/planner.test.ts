@@ -21,7 +21,7 @@ async function clubId(page: Page): Promise<number> {
 }
 
 async function listFlights(page: Page): Promise<ApiFlight[]> {
-  const answer = await page.request.get(`/api/v1/clubs/${await clubId(page)}/flights`);
+  const answer = await page.request.get(`/api/v1/clubs/${await clubId(page)}/flights?pageSize=200`);
   return ((await answer.json()) as { data: ApiFlight[] }).data;
 }
 

@@ -31,7 +31,7 @@ async function flightsOf(page: Page): Promise<FlightBrief[]> {
   return page.evaluate(async () => {
     const me = (await (await fetch('/api/v1/auth/me')).json()) as { data: { memberships: { clubId: number }[] } };
     const clubId = me.data.memberships[0].clubId;
-    const list = (await (await fetch(`/api/v1/clubs/${clubId}/flights`)).json()) as { data: FlightBrief[] };
+    const list = (await (await fetch(`/api/v1/clubs/${clubId}/flights?pageSize=200`)).json()) as { data: FlightBrief[] };
     return list.data.map((f) => ({ id: f.id, sessionId: f.sessionId, status: f.status, athleteName: f.athleteName }));
   });
 }

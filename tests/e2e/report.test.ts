@@ -67,11 +67,25 @@ describe('Flights and the Flight report', () => {
 
       const all = await listedFlights(page);
       expect(all.length).toBeGreaterThanOrEqual(2);
+      // A month of demo flights is more than one page: the table pages through them on the server.
+      const count = page.getByTestId('flights-count');
+      expect((await count.textContent())?.replace(/\s+/g, ' ').trim()).toMatch(/^1–25 of (\d+) flights$/);
+      await page.locator('[data-testid="flights-table"] .p-paginator-next').click();
+      await expect.poll(async () => (await count.textContent())?.replace(/\s+/g, ' ').trim()).toMatch(/^26–50 of \d+ flights$/);
+      const second = await listedFlights(page);
+      expect(second).toHaveLength(25);
+      expect(second.some((f) => all.some((g) => g.id === f.id))).toBe(false);
+      await screenshot(page, 'report-flights-page-2');
+      await page.locator('[data-testid="flights-table"] .p-paginator-first').click();
+      await expect.poll(async () => (await count.textContent())?.replace(/\s+/g, ' ').trim()).toMatch(/^1–25 of/);
       otherAthletesFlightId = all.find((f) => f.athlete !== DEMO_USERS.athlete.name)?.id ?? 0;
       expect(otherAthletesFlightId).toBeGreaterThan(0);
 
       await pickOption(page, 'filter-status', 'fitted');
-      await expect.poll(async () => page.locator('[data-testid="flights-table"] [data-testid="flight-status"]').evaluateAll((tags) => tags.map((t) => t.getAttribute('data-status')))).not.toContain('uploaded');
+      // The server filters: wait until the page in view is the filtered one.
+      await expect
+        .poll(async () => [...new Set(await page.locator('[data-testid="flights-table"] [data-testid="flight-status"]').evaluateAll((tags) => tags.map((t) => t.getAttribute('data-status'))))])
+        .toEqual(['fitted']);
       const statuses = await page.locator('[data-testid="flights-table"] [data-testid="flight-status"]').evaluateAll((tags) => tags.map((t) => t.getAttribute('data-status')));
       expect(statuses.length).toBeGreaterThan(0);
       expect(new Set(statuses)).toEqual(new Set(['fitted']));

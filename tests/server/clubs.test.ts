@@ -56,7 +56,7 @@ describe('clubs: members and roles', () => {
     const res = await f.coach.get(`/api/v1/clubs/${f.clubId}/members`);
     expect(res.status).toBe(200);
     const members = res.body.data as MemberSummary[];
-    expect(res.body.meta).toEqual({ total: 3 });
+    expect(res.body.meta).toEqual({ page: 1, pageSize: 25, total: 3 });
     const athlete = members.find((m) => m.role === 'athlete');
     expect(athlete).toEqual({
       id: f.members.athlete.membershipId,

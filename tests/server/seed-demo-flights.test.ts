@@ -5,7 +5,9 @@ import { generateTrack } from '../../shared/physics';
 import { runSeeders } from '../../server/seeders';
 import { DEMO_PASSWORD, seed as seedClub } from '../../server/seeders/0001-demo-club';
 import { seed as seedFlights } from '../../server/seeders/0002-demo-flights';
-import { clipLayout, DEMO_SESSIONS, type DemoFlightPlan, type DemoSessionPlan } from '../../server/seeders/demo/plan';
+import { BALLS } from '../../shared/physics';
+import { clipLayout, daysBefore, DEMO_SESSIONS, type DemoFlightPlan, type DemoSessionPlan } from '../../server/seeders/demo/plan';
+import { seededTracks } from '../../server/seeders/demo/tracks';
 import { loadFitInput, sessionAir } from '../../server/services/fit-input';
 import { sequelize, Session } from '../../server/models';
 import { signIn, testApp, type ApiClient } from '../support/app';
@@ -17,7 +19,11 @@ const SPEED_TOLERANCE = 0.01; // relative
 const ANGLE_TOLERANCE_DEG = 0.5;
 const CD_TOLERANCE = 0.05; // relative
 
+/** The flights rendered as clips. */
 const PLANS: { session: DemoSessionPlan; flight: DemoFlightPlan }[] = DEMO_SESSIONS.flatMap((session) => session.flights.map((flight) => ({ session, flight })));
+/** The reps seeded as tracks without footage. */
+const TRACKS = DEMO_SESSIONS.flatMap((session) => seededTracks(session));
+const ALL_FLIGHTS = PLANS.length + TRACKS.length;
 
 interface ClipBody {
   id: number;
@@ -43,7 +49,8 @@ interface FlightBody {
   ballId: string;
   status: string;
   pointCount: number;
-  latestFit: { model: string; status: string; launchSpeedMps: number; launchAngleDeg: number } | null;
+  attentionReason: string | null;
+  latestFit: { model: string; status: string; launchSpeedMps: number; launchAngleDeg: number; carryM: number } | null;
 }
 
 async function tableCounts(): Promise<Record<string, number>> {
@@ -95,21 +102,34 @@ describe('demo flights seed', () => {
     let clips: ClipBody[];
     let flights: FlightBody[];
 
+    let seedLines: string[];
+    let sessionIds: Map<string, number>;
+
     beforeAll(async () => {
-      await runSeeders();
+      seedLines = await runSeeders();
       await testWorker('seed-demo').drain();
       const app = testApp();
       coach = await signIn(app, 'coach@fennickvale.example', DEMO_PASSWORD);
       athlete = await signIn(app, 'athlete@fennickvale.example', DEMO_PASSWORD);
       const me = (await coach.get('/api/v1/auth/me')).body.data as { memberships: { clubId: number; clubName: string }[] };
       clubId = me.memberships.find((m) => m.clubName === 'Fennick Vale Sporting Club')!.clubId;
-      clips = (await coach.get(`/api/v1/clubs/${clubId}/clips`)).body.data as ClipBody[];
-      flights = (await coach.get(`/api/v1/clubs/${clubId}/flights`)).body.data as FlightBody[];
-    }, 60_000);
+      clips = (await coach.get(`/api/v1/clubs/${clubId}/clips?pageSize=200`)).body.data as ClipBody[];
+      flights = (await coach.get(`/api/v1/clubs/${clubId}/flights?pageSize=200`)).body.data as FlightBody[];
+      const sessions = (await coach.get(`/api/v1/clubs/${clubId}/sessions`)).body.data as { id: number; venue: string }[];
+      sessionIds = new Map(sessions.map((s) => [s.venue, s.id]));
+    }, 120_000);
 
     function clipOf(flight: DemoFlightPlan): ClipBody {
       const clip = clips.find((c) => c.label === flight.clip.label);
       if (!clip) throw new Error(`no clip "${flight.clip.label}"`);
+      return clip;
+    }
+
+    /** The clip of a seeded rep: its label within its session. */
+    function trackClip(track: (typeof TRACKS)[number]): ClipBody {
+      const sessionId = sessionIds.get(track.session.venue);
+      const clip = clips.find((c) => c.label === track.clip.label && c.sessionId === sessionId);
+      if (!clip) throw new Error(`no clip "${track.clip.label}" in "${track.session.venue}"`);
       return clip;
     }
 
@@ -120,14 +140,26 @@ describe('demo flights seed', () => {
       return found;
     }
 
-    it('creates a cool sea-level session and a warm session at 1,600 m with their conditions', async () => {
+    it('creates four sessions of the last month in clearly different air and wind, with their conditions', async () => {
       const res = await coach.get(`/api/v1/clubs/${clubId}/sessions`);
       expect(res.status).toBe(200);
       const sessions = res.body.data as { venue: string; date: string; conditions: Record<string, number | null>; clipCount: number; flightCount: number }[];
+      expect(DEMO_SESSIONS.length).toBeGreaterThanOrEqual(4);
       for (const plan of DEMO_SESSIONS) {
         const session = sessions.find((s) => s.venue === plan.venue);
-        expect(session).toMatchObject({ date: plan.date, conditions: plan.conditions, clipCount: plan.flights.length, flightCount: plan.flights.length });
+        const count = plan.flights.length + plan.blocks.reduce((n, b) => n + b.reps, 0);
+        expect(session).toMatchObject({ date: plan.date, conditions: plan.conditions, clipCount: count, flightCount: count });
+        expect(plan.date >= daysBefore(31)).toBe(true);
+        expect(plan.date <= daysBefore(0)).toBe(true);
       }
+      // Clearly different: temperatures at least 15 K apart, densities 0.9 to 1.3 kg/m³, a tailwind and a headwind.
+      const temperatures = DEMO_SESSIONS.map((s) => s.conditions.airTemperatureK!);
+      expect(Math.max(...temperatures) - Math.min(...temperatures)).toBeGreaterThan(15);
+      const densities = DEMO_SESSIONS.map((s) => sessionAir(s.conditions).densityKgM3);
+      expect(Math.max(...densities) - Math.min(...densities)).toBeGreaterThan(0.3);
+      const along = DEMO_SESSIONS.map((s) => (s.conditions.windSpeedMps ?? 0) * Math.cos(((s.conditions.windDirectionDeg ?? 90) * Math.PI) / 180));
+      expect(Math.max(...along)).toBeGreaterThan(3);
+      expect(Math.min(...along)).toBeLessThan(-3);
       const [coast, mountain] = DEMO_SESSIONS;
       expect(coast!.conditions).toMatchObject({ airTemperatureK: 282.15, airPressurePa: 101_500, relativeHumidityPct: 80 });
       expect(mountain!.conditions).toMatchObject({ airTemperatureK: 302.15, altitudeM: 1600, relativeHumidityPct: 30 });
@@ -136,8 +168,8 @@ describe('demo flights seed', () => {
       expect(sessionAir(mountain!.conditions).densityKgM3).toBeLessThan(0.97);
     });
 
-    it('stores one processed clip per flight, drawn at the calibration scale so the ball check agrees', async () => {
-      expect(clips).toHaveLength(PLANS.length);
+    it('stores one processed clip per rendered flight, drawn at the calibration scale so the ball check agrees', async () => {
+      expect(clips).toHaveLength(ALL_FLIGHTS);
       for (const { session, flight } of PLANS) {
         const clip = clipOf(flight);
         const layout = clipLayout(session, flight);
@@ -156,8 +188,61 @@ describe('demo flights seed', () => {
       expect(await workFolders(store)).toEqual([]);
     });
 
+    it('keeps the seeded reps in clips without footage, calibrated, with no frames to open', async () => {
+      for (const track of TRACKS) {
+        const clip = trackClip(track);
+        expect(clip).toMatchObject({ status: 'ready', framesReady: false, width: 1280, height: 720, captureFps: track.clip.captureFps });
+        expect(clip!.calibration).not.toBeNull();
+        expect(await store.storage.list(`clubs/${clubId}/clips/${clip!.id}`)).toEqual([]);
+      }
+      expect(seedLines.find((l) => l.startsWith('0002-demo-flights'))).toMatch(
+        new RegExp(`${ALL_FLIGHTS} flight\\(s\\): ${PLANS.length} rendered as clip\\(s\\).*${TRACKS.length} seeded as traced tracks without footage`),
+      );
+    });
+
+    it('holds at least 60 fitted flights, with 3 to 5 reps per athlete, action and session', () => {
+      expect(flights).toHaveLength(ALL_FLIGHTS);
+      const fitted = flights.filter((f) => f.status === 'fitted');
+      expect(fitted.length).toBeGreaterThanOrEqual(60);
+      const reps = new Map<string, number>();
+      for (const f of flights) reps.set(`${f.sessionId}|${f.athleteName}|${f.action}`, (reps.get(`${f.sessionId}|${f.athleteName}|${f.action}`) ?? 0) + 1);
+      for (const [key, n] of reps) {
+        expect(n, key).toBeGreaterThanOrEqual(3);
+        expect(n, key).toBeLessThanOrEqual(5);
+      }
+      expect(new Set(flights.map((f) => f.athleteName)).size).toBeGreaterThanOrEqual(8);
+      expect(new Set(flights.map((f) => f.action)).size).toBeGreaterThanOrEqual(7);
+    });
+
+    it('fits the seeded reps with the engine and recovers their launch', () => {
+      for (const track of TRACKS.filter((t) => t.fault === null)) {
+        const body = flights.find((f) => f.clipId === trackClip(track).id)!;
+        expect(body.status, track.key).toBe('fitted');
+        expect(Math.abs(body.latestFit!.launchSpeedMps / track.launch.speed - 1), track.key).toBeLessThan(0.02);
+        expect(body.latestFit!.carryM, track.key).toBeGreaterThan(0);
+      }
+    });
+
+    it('puts the faulty reps in "needs attention" with the reason the fit gave', () => {
+      const attention = flights.filter((f) => f.status === 'needs_attention');
+      expect(attention.map((f) => f.athleteName).sort()).toEqual(['Cato Merriweather', 'Elspeth Rook', 'Orrin Calloway']);
+      const reason = (name: string) => attention.find((f) => f.athleteName === name)!.attentionReason ?? '';
+      expect(reason('Elspeth Rook')).toMatch(/calibration scale may be off/);
+      expect(reason('Cato Merriweather')).toMatch(/stretched ×4/);
+      expect(reason('Orrin Calloway')).toMatch(/needs at least 5/);
+    });
+
+    it('keeps a light ball beside a heavy one of the same size in one session', () => {
+      const light = BALLS['table-tennis']!;
+      const heavy = BALLS.golf!;
+      expect(Math.abs(heavy.diameterM.nominal / light.diameterM.nominal - 1)).toBeLessThan(0.1);
+      expect(heavy.massKg.nominal / light.massKg.nominal).toBeGreaterThan(10);
+      const bySession = new Map<number, Set<string>>();
+      for (const f of flights) bySession.set(f.sessionId, (bySession.get(f.sessionId) ?? new Set()).add(f.ballId));
+      expect([...bySession.values()].some((balls) => balls.has('table-tennis') && balls.has('golf'))).toBe(true);
+    });
+
     it('tags flights of several balls and actions to the demo athletes', () => {
-      expect(flights).toHaveLength(PLANS.length);
       for (const { session, flight } of PLANS) {
         const body = flightOf(flight);
         expect(body).toMatchObject({ athleteName: flight.athlete, action: flight.action, ballId: flight.ballId });
@@ -169,7 +254,7 @@ describe('demo flights seed', () => {
     });
 
     it('shows Isla Brackwater her own flights, at least two, and nothing of the others', async () => {
-      const res = await athlete.get(`/api/v1/clubs/${clubId}/flights`);
+      const res = await athlete.get(`/api/v1/clubs/${clubId}/flights?pageSize=200`);
       expect(res.status).toBe(200);
       const own = res.body.data as FlightBody[];
       expect(own.length).toBeGreaterThanOrEqual(2);

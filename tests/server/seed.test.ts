@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { runSeeders } from '../../server/seeders';
-import { DEMO_CLUB_NAME, DEMO_PASSWORD, DEMO_PROFILES } from '../../server/seeders/0001-demo-club';
+import { bornYearsAgo, DEMO_CLUB_NAME, DEMO_PASSWORD, DEMO_PROFILES, DEMO_USERS } from '../../server/seeders/0001-demo-club';
 import { AthleteProfile, Club, Membership, signIn, testApp, User } from '../support/app';
 
 describe('demo seed', () => {
@@ -30,7 +30,7 @@ describe('demo seed', () => {
       expect(membership.role).toBe(role);
       if (who === 'athlete') {
         const profile = await AthleteProfile.findByPk(membership.athleteProfileId as number);
-        expect(profile).toMatchObject({ displayName: 'Isla Brackwater', birthYear: 2009, dominantSide: 'right', position: 'punter' });
+        expect(profile).toMatchObject({ displayName: 'Isla Brackwater', birthYear: bornYearsAgo(16), dominantSide: 'right', position: 'punter' });
         const overview = await client.get(`/api/v1/clubs/${membership.clubId}/overview`);
         expect(overview.body.data.counts.athleteProfiles).toBe(1);
       } else {
@@ -38,5 +38,18 @@ describe('demo seed', () => {
         expect(athletes.body.data).toHaveLength(DEMO_PROFILES.length + 1);
       }
     }
+  });
+
+  it('keeps 8 to 10 athletes of several ages, exactly two of them under 18 this year', () => {
+    const athletes = [...DEMO_USERS.flatMap((u) => (u.athlete ? [u.athlete] : [])), ...DEMO_PROFILES];
+    expect(athletes.length).toBeGreaterThanOrEqual(8);
+    expect(athletes.length).toBeLessThanOrEqual(10);
+    const year = new Date().getUTCFullYear();
+    // Born in year - 17 or later: under 18 on every day of this year.
+    const youths = athletes.filter((a) => year - a.birthYear <= 17);
+    expect(youths.map((a) => a.displayName).sort()).toEqual(['Isla Brackwater', 'Saskia Fenwright']);
+    const ages = athletes.map((a) => year - a.birthYear);
+    expect(Math.max(...ages) - Math.min(...ages)).toBeGreaterThanOrEqual(25);
+    expect(bornYearsAgo(16, new Date(Date.UTC(2031, 5, 1)))).toBe(2015);
   });
 });

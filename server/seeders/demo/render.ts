@@ -33,7 +33,7 @@ const SCALE_DISTANCES_M = [20, 10, 5, 2, 1];
  * The calibration of a rendered clip: a whole number of metres along the ground from the point under
  * the release, a level line across the picture at ground height, and the ball's drawn diameter.
  */
-export function demoCalibration(layout: ClipLayout, ballId: string): CalibrationInput {
+export function demoCalibration(layout: Pick<ClipLayout, 'launchXPx' | 'groundYPx' | 'pxPerMetre' | 'width' | 'ballRadiusPx'>, ballId: string): CalibrationInput {
   const { launchXPx: x0, groundYPx: y0, pxPerMetre, width } = layout;
   const room = width - 8 - x0;
   const distanceM = SCALE_DISTANCES_M.find((d) => d * pxPerMetre <= room) ?? room / pxPerMetre;
