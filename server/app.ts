@@ -16,12 +16,14 @@ import type { LimitOptions } from './http/rate-limit';
 import { requestId } from './http/request-id';
 import { sessionMiddleware } from './http/session';
 import './http/types';
+import { accountRouter } from './routes/account';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
 import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
 import { devMailboxRouter } from './routes/dev-mailbox';
+import { exportsRouter } from './routes/exports';
 import { flightsRouter } from './routes/flights';
 import { healthRouter } from './routes/health';
 import { invitationLinksRouter, invitationsRouter } from './routes/invitations';
@@ -106,6 +108,7 @@ export function createApp(options: AppOptions = {}): Express {
     }),
   );
   api.use(passwordResetRouter({ windowMs: config.rateLimit.resetWindowMs, max: config.rateLimit.resetMax, ...options.resetLimit }));
+  api.use(accountRouter);
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
@@ -114,6 +117,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(invitationLinksRouter);
   api.use(sessionsRouter);
   api.use(clipsRouter);
+  api.use(exportsRouter);
   api.use(flightsRouter);
   api.use(jobsRouter);
 

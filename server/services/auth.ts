@@ -110,7 +110,7 @@ export async function loadMe(userId: number): Promise<Me | null> {
   const profiles = await AthleteProfile.findAll({ where: { userId }, attributes: ['id', 'clubId'] });
   const profileByClub = new Map(profiles.map((p) => [p.clubId, p.id]));
   return {
-    user: { id: user.id, email: user.email, displayName: user.displayName },
+    user: { id: user.id, email: user.email, displayName: user.displayName, unitsPreference: user.unitsPreference },
     memberships: memberships
       .map((m) => ({
         clubId: m.clubId,
