@@ -11,10 +11,12 @@
 export type UnitSystem = 'metric' | 'imperial';
 
 /**
- * What a number measures. SI units as stored: length/shortLength/altitude m, speed m/s, mass/shortMass kg,
- * temperature K, pressure Pa.
+ * What a number measures. SI units as stored: length/shortLength/fineLength/altitude m, speed m/s, mass/shortMass kg,
+ * temperature K, pressure Pa, density kg/m³. `fineLength` is for sizes on the picture (a ball's diameter, the
+ * calibration's scale per pixel): millimetres or inches.
  */
-export type Quantity = 'length' | 'shortLength' | 'altitude' | 'speed' | 'mass' | 'shortMass' | 'temperature' | 'pressure';
+export type Quantity =
+  | 'length' | 'shortLength' | 'fineLength' | 'altitude' | 'speed' | 'mass' | 'shortMass' | 'temperature' | 'pressure' | 'density';
 
 export interface DisplayUnit {
   /** Symbol shown after the number, e.g. `m/s`. */
@@ -35,6 +37,8 @@ const MPS_PER_MPH = 0.44704;
 const PA_PER_INHG = 3386.389;
 const PA_PER_HPA = 100;
 const KELVIN_AT_0_CELSIUS = 273.15;
+/** kg/m³ per lb/ft³: 0.45359237 kg / (0.3048 m)³, exact by the definitions above. */
+const KG_M3_PER_LB_FT3 = KG_PER_POUND / METRE_PER_FOOT ** 3;
 
 function linear(symbol: string, siPerUnit: number, digits: number): DisplayUnit {
   return { symbol, digits, fromSi: (si) => si / siPerUnit, toSi: (shown) => shown * siPerUnit };
@@ -44,6 +48,7 @@ const UNITS: Record<UnitSystem, Record<Quantity, DisplayUnit>> = {
   metric: {
     length: linear('m', 1, 1),
     shortLength: linear('cm', 0.01, 1),
+    fineLength: linear('mm', 1e-3, 0),
     altitude: linear('m', 1, 0),
     speed: linear('m/s', 1, 1),
     mass: linear('kg', 1, 2),
@@ -55,10 +60,12 @@ const UNITS: Record<UnitSystem, Record<Quantity, DisplayUnit>> = {
       toSi: (c) => c + KELVIN_AT_0_CELSIUS,
     },
     pressure: linear('hPa', PA_PER_HPA, 0),
+    density: linear('kg/m³', 1, 3),
   },
   imperial: {
     length: linear('ft', METRE_PER_FOOT, 1),
     shortLength: linear('in', METRE_PER_INCH, 2),
+    fineLength: linear('in', METRE_PER_INCH, 2),
     altitude: linear('ft', METRE_PER_FOOT, 0),
     speed: linear('mph', MPS_PER_MPH, 1),
     mass: linear('lb', KG_PER_POUND, 2),
@@ -70,6 +77,7 @@ const UNITS: Record<UnitSystem, Record<Quantity, DisplayUnit>> = {
       toSi: (f) => ((f - 32) * 5) / 9 + KELVIN_AT_0_CELSIUS,
     },
     pressure: linear('inHg', PA_PER_INHG, 2),
+    density: linear('lb/ft³', KG_M3_PER_LB_FT3, 4),
   },
 };
 
@@ -119,8 +127,8 @@ export function effectiveUnits(preference: UnitsPreference | null | undefined, c
 
 /** Suffix of an export column's name for each quantity, e.g. `carry` + length + imperial → `carry_ft`. */
 const COLUMN_SUFFIX: Record<UnitSystem, Record<Quantity, string>> = {
-  metric: { length: 'm', shortLength: 'cm', altitude: 'm', speed: 'mps', mass: 'kg', shortMass: 'g', temperature: 'c', pressure: 'hpa' },
-  imperial: { length: 'ft', shortLength: 'in', altitude: 'ft', speed: 'mph', mass: 'lb', shortMass: 'oz', temperature: 'f', pressure: 'inhg' },
+  metric: { length: 'm', shortLength: 'cm', fineLength: 'mm', altitude: 'm', speed: 'mps', mass: 'kg', shortMass: 'g', temperature: 'c', pressure: 'hpa', density: 'kg_m3' },
+  imperial: { length: 'ft', shortLength: 'in', fineLength: 'in', altitude: 'ft', speed: 'mph', mass: 'lb', shortMass: 'oz', temperature: 'f', pressure: 'inhg', density: 'lb_ft3' },
 };
 
 /** The name of an export column holding a quantity, with its unit: `unitColumn('carry', 'length', 'imperial')` → `carry_ft`. */

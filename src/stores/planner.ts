@@ -4,7 +4,6 @@ import {
   bestAngle, isPhysicsError, planFlight, plannerGrid, sensitivities, speedForCarry,
   type CarryGrid, type FitResult, type FlightSetup, type FlightSummary, type Sensitivities,
 } from '@shared/physics';
-import { fetchClub } from '@/api/clubs';
 import { fetchFlight, listFits, listFlights, type Fit, type Flight } from '@/api/flights';
 import { fitResultOf } from '@/components/report/fit-result';
 import { loadErrorText } from '@/composables/use-loader';
@@ -14,6 +13,7 @@ import {
 } from '@/components/planner/planner-model';
 import { formatQuantity, type UnitSystem } from '@/utils/units';
 import { useClubStore } from './club';
+import { useUnitsStore } from './units';
 
 /** Points of the path drawn for each flight on the trajectory chart. */
 const PATH_POINTS = 90;
@@ -51,7 +51,8 @@ function attempt<T>(fn: () => T): Outcome<T> {
 export const usePlannerStore = defineStore('planner', () => {
   const club = useClubStore();
 
-  const units = ref<UnitSystem>('metric');
+  const unitsStore = useUnitsStore();
+  const units = computed<UnitSystem>(() => unitsStore.system);
   const flights = shallowRef<Flight[]>([]);
   const flightsLoading = ref(false);
   const flightsError = ref<string | null>(null);
@@ -72,14 +73,7 @@ export const usePlannerStore = defineStore('planner', () => {
   let generation = 0;
 
   async function ensureUnits(): Promise<void> {
-    const clubId = club.clubId;
-    if (clubId === null) return;
-    try {
-      const profile = await fetchClub(clubId);
-      units.value = profile.units === 'imperial' ? 'imperial' : 'metric';
-    } catch {
-      // Units are a display preference: a failed read keeps metric rather than blocking the screen.
-    }
+    await unitsStore.ensure();
   }
 
   async function loadFlights(): Promise<void> {
