@@ -18,5 +18,7 @@ export default defineConfig({
     // /dev is the development mailbox the API serves beside the fakes.
     proxy: { '/api': `http://127.0.0.1:${apiPort}`, '/dev': `http://127.0.0.1:${apiPort}` },
   },
+  // Module workers (the Planner's carry map) may share chunks with the page.
+  worker: { format: 'es' },
   build: { outDir: 'dist', chunkSizeWarningLimit: 1500 },
 });
