@@ -7,10 +7,12 @@ const apiPort = process.env.PORT ?? '4780';
 export default defineConfig({
   plugins: [vue()],
   resolve: {
-    alias: {
-      '@': fileURLToPath(new URL('./src', import.meta.url)),
-      '@shared': fileURLToPath(new URL('./shared', import.meta.url)),
-    },
+    alias: [
+      { find: '@', replacement: fileURLToPath(new URL('./src', import.meta.url)) },
+      { find: '@shared', replacement: fileURLToPath(new URL('./shared', import.meta.url)) },
+      // The CSV writer's Node build reads Node's Buffer when it loads; the browser gets the package's own browser build.
+      { find: /^csv-stringify\/sync$/, replacement: 'csv-stringify/browser/esm/sync' },
+    ],
   },
   server: {
     host: '127.0.0.1',

@@ -2,8 +2,8 @@ import { execFileSync } from 'node:child_process';
 import { mkdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, SCREENSHOT_DIR, screenshot, settle, signIn } from './support/browser';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { DEMO_USERS, launchBrowser, newContext, SCREENSHOT_DIR, screenshot, settle, signIn, withPage } from './support/browser';
 import { apiWrite, demoClubId, waitForFittedDemoFlight, type ApiFlight } from './support/demo';
 
 /**
@@ -15,13 +15,20 @@ import { apiWrite, demoClubId, waitForFittedDemoFlight, type ApiFlight } from '.
 /** A number followed by a metric unit: 12 m, 3.4 m/s, 15 °C, 0.43 kg, 220 mm, 1013 hPa, 1.2 kg/m³, 5 g, 22 cm. */
 const METRIC_FIGURE = /\d\s?(?:m\/s|km\/h|°C|kg\/m³|kg|hPa|mm|cm|m|g)(?![A-Za-z/²³])/;
 
-async function freshPage(browser: Browser): Promise<{ page: Page; errors: string[]; close: () => Promise<void> }> {
-  const context = await newContext(browser);
-  await context.addInitScript(() => {
-    (window as unknown as { __ARCWRIGHT_NO_ANIMATION__: boolean }).__ARCWRIGHT_NO_ANIMATION__ = true;
+/** A page of a fresh context with finished charts (src/components/charts/echarts-setup.ts reads the flag). */
+function onPage(browser: Browser, run: (page: Page, errors: string[]) => Promise<void>): Promise<void> {
+  return withPage(browser, async (page, errors) => {
+    await page.addInitScript(() => {
+      (window as unknown as { __ARCWRIGHT_NO_ANIMATION__: boolean }).__ARCWRIGHT_NO_ANIMATION__ = true;
+    });
+    try {
+      await run(page, errors);
+    } catch (error) {
+      // The page's own errors say more than a timeout.
+      if (errors.length > 0 && error instanceof Error) error.message += `\nPage errors:\n${errors.join('\n')}`;
+      throw error;
+    }
   });
-  const page = await context.newPage();
-  return { page, errors: collectPageErrors(page), close: () => context.close() };
 }
 
 /** The visible text of the page's content (rail excluded: its units choice names both systems). */
@@ -42,26 +49,28 @@ async function setClubUnits(page: Page, units: 'metric' | 'imperial'): Promise<v
 describe('Display units', () => {
   let browser: Browser;
   let flight: ApiFlight;
-  let admin: Awaited<ReturnType<typeof freshPage>>;
+  /** The club admin's page, signed in for the whole file: it switches the club's units and renames an athlete. */
+  let adminContext: BrowserContext;
+  let admin: Page;
 
   beforeAll(async () => {
     browser = await launchBrowser();
-    admin = await freshPage(browser);
-    await signIn(admin.page, DEMO_USERS.admin.email);
-    flight = await waitForFittedDemoFlight(admin.page);
-    await setClubUnits(admin.page, 'imperial');
+    adminContext = await newContext(browser);
+    admin = await adminContext.newPage();
+    await signIn(admin, DEMO_USERS.admin.email);
+    flight = await waitForFittedDemoFlight(admin);
+    await setClubUnits(admin, 'imperial');
   }, 90000);
 
   afterAll(async () => {
     // The other browser tests read the demo club in metric.
-    await setClubUnits(admin.page, 'metric').catch(() => undefined);
-    await admin?.close();
+    await setClubUnits(admin, 'metric').catch(() => undefined);
+    await adminContext?.close();
     await browser?.close();
   });
 
   it('shows ft, mph and °F and no metric figure on the Flight report, Planner and Session report when the club is on imperial', async () => {
-    const { page, errors, close } = await freshPage(browser);
-    try {
+    await onPage(browser, async (page, errors) => {
       await signIn(page, DEMO_USERS.coach.email);
 
       await page.goto(`/flights/${flight.id}`);
@@ -97,14 +106,11 @@ describe('Display units', () => {
       expectImperialOnly(session, 'the Session report');
       await screenshot(page, 'units-imperial-session-report');
       expect(errors).toEqual([]);
-    } finally {
-      await close();
-    }
+    });
   });
 
   it('shows metric to a member who chose metric although the club is on imperial, and the club’s again after choosing it', async () => {
-    const { page, errors, close } = await freshPage(browser);
-    try {
+    await onPage(browser, async (page, errors) => {
       await signIn(page, DEMO_USERS.athlete.email);
       const own = await waitForFittedDemoFlight(page);
       await page.goto(`/flights/${own.id}`);
@@ -126,14 +132,11 @@ describe('Display units', () => {
       await page.getByRole('option', { name: "Club's (imperial)" }).click();
       await expect.poll(() => contentText(page)).toMatch(/\d mph\b/);
       expect(errors).toEqual([]);
-    } finally {
-      await close();
-    }
+    });
   });
 
   it('prints the Session report to a PDF whose first page holds the flights, consistency and scatter in imperial', async () => {
-    const { page, errors, close } = await freshPage(browser);
-    try {
+    await onPage(browser, async (page, errors) => {
       await signIn(page, DEMO_USERS.coach.email);
       await page.goto(`/sessions/${flight.sessionId}/report`);
       await page.getByTestId('session-flights').waitFor();
@@ -160,40 +163,38 @@ describe('Display units', () => {
       expect(png.subarray(1, 4).toString('latin1')).toBe('PNG');
       await page.emulateMedia({ media: 'screen' });
       expect(errors).toEqual([]);
-    } finally {
-      await close();
-    }
+    });
   });
 
   it('shows an athlete’s name in a chart tooltip as the characters typed, never as markup', async () => {
-    const { page, errors, close } = await freshPage(browser);
-    const clubId = await demoClubId(admin.page);
+    const clubId = await demoClubId(admin);
     const athletePath = `/clubs/${clubId}/athletes/${flight.athleteId}`;
     const original = flight.athleteName;
+    await apiWrite(admin, 'PATCH', athletePath, { displayName: '<b>x</b> Quill' });
     try {
-      await apiWrite(admin.page, 'PATCH', athletePath, { displayName: '<b>x</b> Quill' });
-      await signIn(page, DEMO_USERS.coach.email);
-      await page.goto(`/sessions/${flight.sessionId}/report`);
-      const chart = page.locator('.session-report__section', { hasText: 'Launch speed and angle' });
-      const canvas = chart.locator('canvas').first();
-      await canvas.waitFor();
-      await settle(page);
-      const box = (await canvas.boundingBox())!;
-      // Sweep the plot until the tooltip of one of the renamed athlete's points shows.
-      let shown = false;
-      for (let y = box.y + 40; y < box.y + box.height - 45 && !shown; y += 5) {
-        for (let x = box.x + 56; x < box.x + box.width - 20 && !shown; x += 5) {
-          await page.mouse.move(x, y);
-          shown = ((await chart.innerText()).includes('<b>x</b> Quill'));
+      await onPage(browser, async (page, errors) => {
+        await signIn(page, DEMO_USERS.coach.email);
+        await page.goto(`/sessions/${flight.sessionId}/report`);
+        const chart = page.locator('.session-report__section', { hasText: 'Launch speed and angle' });
+        const canvas = chart.locator('canvas').first();
+        await canvas.waitFor();
+        await settle(page);
+        const box = (await canvas.boundingBox())!;
+        // Sweep the plot until the tooltip of one of the renamed athlete's points shows.
+        let shown = false;
+        for (let y = box.y + 40; y < box.y + box.height - 45 && !shown; y += 5) {
+          for (let x = box.x + 56; x < box.x + box.width - 20 && !shown; x += 5) {
+            await page.mouse.move(x, y);
+            shown = ((await chart.innerText()).includes('<b>x</b> Quill'));
+          }
         }
-      }
-      expect(shown).toBe(true);
-      expect(await chart.locator('b').count()).toBe(0);
-      await screenshot(page, 'units-tooltip-escaped');
-      expect(errors).toEqual([]);
+        expect(shown).toBe(true);
+        expect(await chart.locator('b').count()).toBe(0);
+        await screenshot(page, 'units-tooltip-escaped');
+        expect(errors).toEqual([]);
+      });
     } finally {
-      await apiWrite(admin.page, 'PATCH', athletePath, { displayName: original }).catch(() => undefined);
-      await close();
+      await apiWrite(admin, 'PATCH', athletePath, { displayName: original }).catch(() => undefined);
     }
   });
 });
