@@ -136,3 +136,8 @@ export function unitColumn(base: string, quantity: Quantity, system: UnitSystem)
   return `${base}_${COLUMN_SUFFIX[system][quantity]}`;
 }
 
+
+/** A picture's scale (metres per pixel) as the length one pixel covers: `1.875 mm` or `0.0738 in`. */
+export function formatPixelScale(metresPerPixel: number | null | undefined, system: UnitSystem): string {
+  return formatQuantity(metresPerPixel, 'fineLength', system, { digits: system === 'imperial' ? 4 : 3 });
+}

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { displayUnit, effectiveUnits, formatQuantity, fromSi, toSi, unitColumn, type Quantity, type UnitSystem } from '../../src/utils/units';
+import { displayUnit, effectiveUnits, formatPixelScale, formatQuantity, fromSi, toSi, unitColumn, type Quantity, type UnitSystem } from '../../src/utils/units';
 
 // Exact factors: International Yard and Pound Agreement (1959); inHg and temperature scales: NIST SP 811 (2008), appendix B.
 
@@ -109,5 +109,14 @@ describe('unitColumn', () => {
     expect(unitColumn('launch_speed', 'speed', 'imperial')).toBe('launch_speed_mph');
     expect(unitColumn('air_temperature', 'temperature', 'imperial')).toBe('air_temperature_f');
     expect(unitColumn('mass', 'shortMass', 'imperial')).toBe('mass_oz');
+  });
+});
+
+describe('formatPixelScale', () => {
+  it('shows the length one pixel covers in mm when metric and in inches when imperial', () => {
+    expect(formatPixelScale(0.001875, 'metric')).toBe('1.875 mm');
+    // 0.0254 m per inch (International Yard and Pound Agreement, 1959).
+    expect(formatPixelScale(0.00254, 'imperial')).toBe('0.1000 in');
+    expect(formatPixelScale(null, 'imperial')).toBe('—');
   });
 });

@@ -37,7 +37,11 @@ async function contentText(page: Page): Promise<string> {
   return page.locator('main').innerText();
 }
 
-function expectImperialOnly(text: string, where: string): void {
+/** Names people typed (venues such as "Korrow Heights Ground (1,600 m)") are theirs, not figures the app converts. */
+let typedNames: string[] = [];
+
+function expectImperialOnly(shown: string, where: string): void {
+  const text = typedNames.reduce((t, name) => t.split(name).join(''), shown);
   const metric = text.match(new RegExp(`.{0,30}${METRIC_FIGURE.source}.{0,10}`));
   expect(metric?.[0] ?? null, `${where} shows a metric figure`).toBeNull();
 }
@@ -59,6 +63,8 @@ describe('Display units', () => {
     admin = await adminContext.newPage();
     await signIn(admin, DEMO_USERS.admin.email);
     flight = await waitForFittedDemoFlight(admin);
+    const sessions = (await (await admin.request.get(`/api/v1/clubs/${await demoClubId(admin)}/sessions`)).json()) as { data: { venue: string }[] };
+    typedNames = sessions.data.map((s) => s.venue).filter((v) => METRIC_FIGURE.test(v));
     await setClubUnits(admin, 'imperial');
   }, 90000);
 
@@ -105,6 +111,28 @@ describe('Display units', () => {
       expect(session).toMatch(/°F/);
       expectImperialOnly(session, 'the Session report');
       await screenshot(page, 'units-imperial-session-report');
+
+      // Every other screen with measurements: no metric figure either.
+      const screens: [string, string][] = [
+        ['/', 'the Overview'],
+        ['/sessions', 'Sessions'],
+        [`/sessions/${flight.sessionId}`, 'a Session'],
+        ['/clips', 'Clips'],
+        [`/clips/${flight.clipId}`, 'a Clip'],
+        [`/clips/${flight.clipId}/trace?flight=${flight.id}`, 'Trace'],
+        ['/flights', 'Flights'],
+        ['/progress', 'Progress'],
+        ['/club', 'the Club screen'],
+      ];
+      for (const [path, where] of screens) {
+        await page.goto(path);
+        await page.getByTestId('page-title').waitFor();
+        expectImperialOnly(await contentText(page), where);
+      }
+      await page.goto(`/clips/${flight.clipId}/trace?flight=${flight.id}`);
+      await page.getByTestId('trace-panel-switch').getByText('Calibrate').click();
+      await expect.poll(async () => (await page.getByTestId('calib-mpp').textContent()) ?? '').toMatch(/in\/px$/);
+      await screenshot(page, 'units-imperial-trace');
       expect(errors).toEqual([]);
     });
   });

@@ -4,6 +4,7 @@ import type { Page } from 'playwright-core';
 export interface ApiFlight {
   id: number;
   sessionId: number;
+  clipId: number;
   athleteId: number;
   athleteName: string;
   status: string;
