@@ -13,7 +13,6 @@ import { Session } from '../models';
 import { listActions, listFlights } from './flights';
 import { findVisibleSession } from './visibility';
 
-
 /** The export rows of flights: labels of actions, balls and states as the screens show them, the session's day and venue. */
 async function csvRows(club: ClubContext, flights: FlightDto[]): Promise<FlightCsvRow[]> {
   const sessionIds = [...new Set(flights.map((f) => f.sessionId))];
