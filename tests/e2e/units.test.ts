@@ -137,6 +137,39 @@ describe('Display units', () => {
     });
   });
 
+  it('stores a temperature, altitude and wind typed in °F, ft and mph in SI when a coach of an imperial club creates a session', async () => {
+    await onPage(browser, async (page, errors) => {
+      await signIn(page, DEMO_USERS.coach.email);
+      await page.goto('/sessions');
+      await page.getByTestId('sessions-table').waitFor();
+      await page.getByTestId('primary-action').click();
+      const venue = `Fennick Vale, east pitch ${Date.now().toString(36)}`;
+      await page.getByTestId('session-venue').fill(venue);
+      for (const [id, value] of [['airTemperatureK', '50'], ['altitudeM', '1000'], ['windSpeedMps', '10']]) {
+        await page.locator(`#cond-${id}`).fill(value);
+        await page.locator(`#cond-${id}`).press('Tab');
+      }
+      await expect(page.locator('#cond-airTemperatureK').inputValue()).resolves.toBe('50 °F');
+      await expect(page.locator('#cond-altitudeM').inputValue()).resolves.toBe('1000 ft');
+      await expect(page.locator('#cond-windSpeedMps').inputValue()).resolves.toBe('10 mph');
+      await page.getByTestId('session-save').click();
+      await page.getByTestId('session-dialog').waitFor({ state: 'detached' });
+
+      const clubId = await demoClubId(page);
+      const listed = (await (await page.request.get(`/api/v1/clubs/${clubId}/sessions?venue=${encodeURIComponent(venue)}`)).json()) as {
+        data: { id: number; conditions: { airTemperatureK: number; altitudeM: number; windSpeedMps: number } }[];
+      };
+      expect(listed.data).toHaveLength(1);
+      const { conditions } = listed.data[0];
+      // 50 °F = 283.15 K; 1000 ft = 304.8 m; 10 mph = 4.4704 m/s (exact definitions, NIST SP 811 appendix B).
+      expect(conditions.airTemperatureK).toBeCloseTo(283.15, 6);
+      expect(conditions.altitudeM).toBeCloseTo(304.8, 6);
+      expect(conditions.windSpeedMps).toBeCloseTo(4.4704, 6);
+      await apiWrite(page, 'DELETE', `/clubs/${clubId}/sessions/${listed.data[0].id}`, undefined);
+      expect(errors).toEqual([]);
+    });
+  });
+
   it('shows metric to a member who chose metric although the club is on imperial, and the club’s again after choosing it', async () => {
     await onPage(browser, async (page, errors) => {
       await signIn(page, DEMO_USERS.athlete.email);

@@ -25,9 +25,9 @@ export async function listDemoFlights(page: Page): Promise<ApiFlight[]> {
 /** A state-changing API call with the session's CSRF token; throws on an error answer. */
 export async function apiWrite(page: Page, method: 'PATCH' | 'POST' | 'PUT' | 'DELETE', path: string, body: unknown): Promise<unknown> {
   const csrf = ((await (await page.request.get('/api/v1/auth/csrf')).json()) as { data: { csrfToken: string } }).data.csrfToken;
-  const res = await page.request.fetch(`/api/v1${path}`, { method, data: body, headers: { 'X-CSRF-Token': csrf } });
+  const res = await page.request.fetch(`/api/v1${path}`, { method, data: body ?? undefined, headers: { 'X-CSRF-Token': csrf } });
   if (!res.ok()) throw new Error(`${method} ${path} answered ${res.status()}: ${await res.text()}`);
-  return res.json();
+  return res.status() === 204 ? null : res.json();
 }
 
 /** The e2e worker fits the demo flights after seeding: waits up to a minute for a fitted flight that `pick` accepts. */
