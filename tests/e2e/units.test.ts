@@ -93,6 +93,8 @@ describe('Display units', () => {
       await page.goto(`/planner?flight=${flight.id}`);
       await page.getByTestId('readout-carry-value').waitFor();
       await page.locator('[data-testid="planner-carry-map"] canvas').first().waitFor();
+      // The carry map's grid comes from its Web Worker, off the page's thread.
+      expect(page.workers().map((w) => w.url()).some((url) => url.includes('carry-map.worker'))).toBe(true);
       const planner = await contentText(page);
       expect(planner).toMatch(/\d ft\b/);
       expect(planner).toMatch(/\d mph\b/);
