@@ -18,6 +18,7 @@ import { requestId } from './http/request-id';
 import { sessionMiddleware } from './http/session';
 import './http/types';
 import { closeConnectionsWhileDraining } from './lifecycle';
+import { accountRouter } from './routes/account';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
@@ -25,6 +26,7 @@ import { clipUploadsRouter } from './routes/clip-uploads';
 import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
 import { devMailboxRouter } from './routes/dev-mailbox';
+import { exportsRouter } from './routes/exports';
 import { flightsRouter } from './routes/flights';
 import { healthRouter } from './routes/health';
 import { invitationLinksRouter, invitationsRouter } from './routes/invitations';
@@ -114,6 +116,7 @@ export function createApp(options: AppOptions = {}): Express {
     }),
   );
   api.use(passwordResetRouter({ windowMs: config.rateLimit.resetWindowMs, max: config.rateLimit.resetMax, ...options.resetLimit }));
+  api.use(accountRouter);
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
@@ -123,6 +126,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(sessionsRouter);
   api.use(clipsRouter);
   api.use(clipUploadsRouter);
+  api.use(exportsRouter);
   api.use(flightsRouter);
   api.use(jobsRouter);
 

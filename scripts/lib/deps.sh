@@ -1,7 +1,8 @@
 # Installs what is missing: Debian packages (as root, else prints the apt line and stops) and npm packages.
 # shellcheck shell=bash
 
-DEBIAN_PACKAGES=(mariadb-server ffmpeg chromium)
+# poppler-utils: pdftoppm renders the printed Session report's PDF to PNG in the browser tests.
+DEBIAN_PACKAGES=(mariadb-server ffmpeg chromium poppler-utils)
 
 debian_package_installed() {
   dpkg-query -W -f='${Status}' "$1" 2>/dev/null | grep -q 'install ok installed'
@@ -25,6 +26,7 @@ ensure_debian_packages() {
     command -v mariadbd >/dev/null 2>&1 || [ -x /usr/sbin/mariadbd ] || missing+=(mariadb-server)
     command -v ffmpeg >/dev/null 2>&1 || missing+=(ffmpeg)
     command -v chromium >/dev/null 2>&1 || missing+=(chromium)
+    command -v pdftoppm >/dev/null 2>&1 || missing+=(poppler-utils)
     [ ${#missing[@]} -eq 0 ] || die "Missing programs: ${missing[*]}. Install them with your package manager, then run this again."
     return 0
   fi

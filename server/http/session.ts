@@ -16,6 +16,7 @@ import connectSessionSequelize from 'connect-session-sequelize';
 import session from 'express-session';
 import type { RequestHandler } from 'express';
 import { QueryTypes, type Sequelize } from 'sequelize';
+import type { UnitsPreference } from '../../shared/units';
 import { config } from '../config';
 import { errorFields, log } from '../logger';
 
@@ -26,6 +27,7 @@ export interface SessionUserRow {
   id: number;
   email: string;
   displayName: string;
+  unitsPreference?: UnitsPreference;
 }
 
 /**
@@ -70,8 +72,8 @@ export function lightenStore<S extends session.Store & { touch: NonNullable<sess
 
   store.get = (sid, fn) => {
     sequelize
-      .query<{ data: string | null; expires: Date | null; userId: number | null; email: string | null; displayName: string | null }>(
-        `SELECT s.data, s.expires, u.id AS userId, u.email, u.display_name AS displayName
+      .query<{ data: string | null; expires: Date | null; userId: number | null; email: string | null; displayName: string | null; unitsPreference: UnitsPreference | null }>(
+        `SELECT s.data, s.expires, u.id AS userId, u.email, u.display_name AS displayName, u.units_preference AS unitsPreference
            FROM auth_sessions s LEFT JOIN users u ON u.id = JSON_VALUE(s.data, '$.passport.user')
           WHERE s.sid = ?`,
         { type: QueryTypes.SELECT, replacements: [sid] },
@@ -88,7 +90,7 @@ export function lightenStore<S extends session.Store & { touch: NonNullable<sess
         if (data.passport?.user === undefined) handedOver.delete(sid);
         else {
           if (handedOver.size >= HAND_OVER_LIMIT) handedOver.clear();
-          handedOver.set(sid, row.userId === null ? null : { id: Number(row.userId), email: row.email ?? '', displayName: row.displayName ?? '' });
+          handedOver.set(sid, row.userId === null ? null : { id: Number(row.userId), email: row.email ?? '', displayName: row.displayName ?? '', unitsPreference: row.unitsPreference ?? 'club' });
         }
         fn(null, data);
       })

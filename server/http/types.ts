@@ -3,6 +3,7 @@
  * (A module with only global declarations; the tsconfig includes it for every server file.)
  */
 import type { Role } from '../../shared/types/api';
+import type { UnitsPreference } from '../../shared/units';
 
 /** The club in view, set by `clubAccess()` for routes under `/api/v1/clubs/:clubId`. */
 export interface ClubContext {
@@ -20,6 +21,8 @@ declare global {
       id: number;
       email: string;
       displayName: string;
+      /** Read with the session when it is at hand; `loadMe` reports `club` when it is not. */
+      unitsPreference?: UnitsPreference;
     }
     interface Request {
       /** Correlates a request with its log lines; also sent as the `X-Request-Id` header. */

@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { UNITS_PREFERENCES, type UnitsPreference } from '../../shared/units';
 
 /** A person who can sign in. Google-only users have no password hash; password-only users have no googleSub. */
 export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
@@ -17,6 +18,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   /** Google's stable subject id (`sub`), unique when present. */
   declare googleSub: string | null;
   declare displayName: string;
+  /** Display units of this user: `club` follows each club's setting; `metric` or `imperial` overrides it. */
+  declare unitsPreference: CreationOptional<UnitsPreference>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -29,6 +32,12 @@ export function initUser(sequelize: Sequelize): typeof User {
       passwordHash: { type: DataTypes.STRING(255), allowNull: true },
       googleSub: { type: DataTypes.STRING(255), allowNull: true, unique: true },
       displayName: { type: DataTypes.STRING(80), allowNull: false },
+      unitsPreference: {
+        type: DataTypes.STRING(10),
+        allowNull: false,
+        defaultValue: 'club',
+        validate: { isIn: [UNITS_PREFERENCES as unknown as string[]] },
+      },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

@@ -7,7 +7,9 @@ import {
   flightListQuerySchema,
   flightPatchSchema,
 } from '../../shared/schemas/flight';
+import { exportUnitsQuerySchema } from '../../shared/schemas/export';
 import { followBodySchema, trackImportBodySchema, trackPointsBodySchema } from '../../shared/schemas/track';
+import { exportUnits, sendCsv } from '../http/csv';
 import { parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
@@ -103,10 +105,10 @@ flightsRouter.post(
 );
 
 flightsRouter.get('/clubs/:clubId/flights/:flightId/track.csv', clubAccess(...ANY_ROLE), async (req, res) => {
-  const { filename, csv } = await exportCsv(clubOf(req), parseId(req.params.flightId, 'flight'));
-  res.setHeader('Content-Type', 'text/csv; charset=utf-8');
-  res.setHeader('Content-Disposition', `attachment; filename="${filename}"`);
-  res.send(csv);
+  const query = exportUnitsQuerySchema.safeParse(req.query);
+  if (!query.success) throw validationError(query.error);
+  const flightId = parseId(req.params.flightId, 'flight');
+  sendCsv(res, await exportCsv(clubOf(req), flightId, await exportUnits(req, query.data.units)));
 });
 
 flightsRouter.post('/clubs/:clubId/flights/:flightId/fit', clubAccess('admin', 'coach'), validate(fitRequestSchema), async (req, res) => {

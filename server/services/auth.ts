@@ -121,11 +121,11 @@ export async function findOrCreateGoogleUser(identity: GoogleIdentity): Promise<
  * SELECT by primary key, no model instance.
  */
 export async function findSessionUser(userId: number): Promise<SessionUser | null> {
-  const [row] = await sequelize.query<SessionUser>('SELECT id, email, display_name AS displayName FROM users WHERE id = ?', {
+  const [row] = await sequelize.query<SessionUser>('SELECT id, email, display_name AS displayName, units_preference AS unitsPreference FROM users WHERE id = ?', {
     type: QueryTypes.SELECT,
     replacements: [userId],
   });
-  return row ? { id: Number(row.id), email: row.email, displayName: row.displayName } : null;
+  return row ? { id: Number(row.id), email: row.email, displayName: row.displayName, unitsPreference: row.unitsPreference } : null;
 }
 
 /**
@@ -144,7 +144,7 @@ export async function loadMe(userId: number, known?: SessionUser): Promise<Me | 
     { type: QueryTypes.SELECT, replacements: [userId] },
   );
   return {
-    user: { id: user.id, email: user.email, displayName: user.displayName },
+    user: { id: user.id, email: user.email, displayName: user.displayName, unitsPreference: user.unitsPreference ?? 'club' },
     memberships: rows
       .map((r) => ({
         clubId: Number(r.clubId),

@@ -10,7 +10,9 @@ import type {
   TrackPoint as TrackPointDto,
   TrackPointInput,
 } from '../../shared/schemas/track';
-import { csvCell, parseTrackCsv, TRACK_CSV_COLUMNS, TrackCsvError } from '../../shared/tracks/csv';
+import { csvDocument } from '../../shared/exports/csv';
+import { parseTrackCsv, TrackCsvError } from '../../shared/tracks/csv';
+import { fromSi, unitColumn, type UnitSystem } from '../../shared/units';
 import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
@@ -170,14 +172,23 @@ export async function importCsv(club: ClubContext, flightId: number, text: strin
   });
 }
 
-export async function exportCsv(club: ClubContext, flightId: number): Promise<{ filename: string; csv: string }> {
+/**
+ * A flight's track as CSV (see shared/exports/csv.ts for the format): pixels, and positions in the member's units
+ * (`x_m`, `y_m` or `x_ft`, `y_ft`) when the clip is calibrated. The file imports back by its pixel columns.
+ */
+export async function exportCsv(club: ClubContext, flightId: number, system: UnitSystem): Promise<{ filename: string; csv: string }> {
   const { flight, clip } = await findVisibleFlightWithClip(club, flightId);
   const points = await pointsOf(flight, clip, await currentCalibration(clip.id));
-  const lines = [TRACK_CSV_COLUMNS.join(',')];
-  for (const p of points) {
-    lines.push([p.frame, p.tS, p.xPx, p.yPx, p.radiusPx, p.source, p.confidence, p.xM, p.yM].map(csvCell).join(','));
-  }
-  return { filename: `flight-${flight.id}-track.csv`, csv: `${lines.join('\n')}\n` };
+  const header = ['frame', 't_s', 'x_px', 'y_px', 'radius_px', 'source', 'confidence', unitColumn('x', 'length', system), unitColumn('y', 'length', system)];
+  const position = (m: number | null) => (m === null ? null : precise(fromSi(m, 'length', system)));
+  const rows = points.map((p) => [p.frame, precise(p.tS), precise(p.xPx), precise(p.yPx), precise(p.radiusPx), p.source, precise(p.confidence), position(p.xM), position(p.yM)]);
+  return { filename: `flight-${flight.id}-track.csv`, csv: csvDocument(header, rows) };
+}
+
+/** A number with ten significant digits (integers as they are); null stays an empty cell. */
+function precise(value: number | null): number | null {
+  if (value === null) return null;
+  return Number.isInteger(value) ? value : Number(value.toPrecision(10));
 }
 
 /** Queues auto-follow from a clicked point of a processed clip. */

@@ -157,14 +157,11 @@ export type ParsedTrackCsv =
   | { kind: 'pixels'; rows: { line: number; frame: number; xPx: number; yPx: number; radiusPx: number | null; confidence: number | null }[] }
   | { kind: 'metres'; rows: { line: number; tS: number; xM: number; yM: number }[] };
 
-/** Header of the exported track CSV. */
-export const TRACK_CSV_COLUMNS = ['frame', 't', 'x_px', 'y_px', 'radius_px', 'source', 'confidence', 'x_m', 'y_m'] as const;
-
 const PIXEL_REQUIRED = ['frame', 'x_px', 'y_px'] as const;
 const PIXEL_OPTIONAL = ['radius_px', 'confidence'] as const;
 const METRE_REQUIRED = ['t', 'x', 'y'] as const;
 /** Columns the export writes that an import of pixel columns ignores. */
-const IGNORED = ['t', 'source', 'x_m', 'y_m'];
+const IGNORED = ['t', 't_s', 'source', 'x_m', 'y_m', 'x_ft', 'y_ft'];
 
 /** The import's header: the pixel or the metre columns, and no column it does not know. */
 function checkImportHeader(header: string[], headerLine: number): void {
@@ -196,7 +193,7 @@ const IMPORT_WORDING: TableWording = {
 
 /**
  * Reads a track CSV for the flight import: pixel columns `frame,x_px,y_px` (optional `radius_px`,
- * `confidence`; the export's `t`, `source`, `x_m`, `y_m` are ignored) or metre columns `t,x,y`
+ * `confidence`; the export's `t_s`, `source`, `x_m`/`x_ft`, `y_m`/`y_ft` (and a plain `t`) are ignored) or metre columns `t,x,y`
  * (s, m). Frames are whole numbers from 0, radii above 0 px, confidences 0…1, times 0 s or more.
  * @param text the file's content; rules in the module comment.
  * @returns the rows with their line numbers, in pixels or in metres.

@@ -1,4 +1,5 @@
 /** Types of the API's responses that both sides use. Request bodies are typed by shared/schemas. */
+import type { UnitsPreference } from '../units';
 
 export const ROLES = ['admin', 'coach', 'athlete'] as const;
 export type Role = (typeof ROLES)[number];
@@ -12,7 +13,8 @@ export interface MembershipSummary {
 }
 
 export interface Me {
-  user: { id: number; email: string; displayName: string };
+  /** `unitsPreference`: the user's own display units, or `club` to follow each club's setting. */
+  user: { id: number; email: string; displayName: string; unitsPreference: UnitsPreference };
   memberships: MembershipSummary[];
 }
 

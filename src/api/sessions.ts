@@ -1,6 +1,6 @@
 import type { DataResponse, ListResponse } from '@shared/types/api';
 import type { Session, SessionInput, SessionPatch } from '@shared/schemas/session';
-import { http, type RequestOptions } from './http';
+import { apiUrl, http, type RequestOptions } from './http';
 import { fetchAllPages, type PageResponse } from './paging';
 
 export type { Session, SessionInput, SessionPatch };
@@ -50,4 +50,9 @@ export async function updateSession(clubId: number, sessionId: number, body: Ses
 /** Deletes a session; `confirm` must be true when it holds flights (the server refuses otherwise with 409 CONFLICT). */
 export async function deleteSession(clubId: number, sessionId: number, confirm: boolean, options: RequestOptions = {}): Promise<void> {
   await http.delete(`${base(clubId)}/${sessionId}`, { ...options, query: confirm ? { confirm: 'true' } : undefined });
+}
+
+/** Where a session's flights download as CSV (in the member's units; an athlete's file holds only their own flights). */
+export function sessionFlightsCsvUrl(clubId: number, sessionId: number): string {
+  return apiUrl(`${base(clubId)}/${sessionId}/flights.csv`);
 }

@@ -1,10 +1,9 @@
 import { defineStore } from 'pinia';
 import { computed, ref, shallowRef, watch } from 'vue';
 import {
-  bestAngle, isPhysicsError, planFlight, plannerGrid, sensitivities, speedForCarry,
+  bestAngle, isPhysicsError, planFlight, sensitivities, speedForCarry,
   type CarryGrid, type FitResult, type FlightSetup, type FlightSummary, type Sensitivities,
 } from '@shared/physics';
-import { fetchClub } from '@/api/clubs';
 import { fetchFlight, listFits, listFlights, type Fit, type Flight } from '@/api/flights';
 import { fitResultOf } from '@/components/report/fit-result';
 import { loadErrorText } from '@/composables/use-loader';
@@ -12,12 +11,14 @@ import {
   blankSetup, CARRY_MAP_ANGLES, carryMapSpeedAxis, DEFAULT_BLANK, hasCurrentFit, inputsFromSetup, setupFromInputs,
   type BlankStart, type InputKey, type PlannerInputs,
 } from '@/components/planner/planner-model';
+import { createCarryMapClient } from '@/components/planner/carry-map-client';
 import { formatQuantity, type UnitSystem } from '@/utils/units';
 import { useClubStore } from './club';
+import { useUnitsStore } from './units';
 
 /** Points of the path drawn for each flight on the trajectory chart. */
 const PATH_POINTS = 90;
-/** The carry map is recomputed this long after the last change of what it depends on (ms): a grid takes ~30 ms. */
+/** The carry map is asked for this long after the last change of what it depends on (ms); a Web Worker computes it. */
 const GRID_DEBOUNCE_MS = 180;
 
 /** A physics refusal as a sentence for the screen; anything else is a fault of the page. */
@@ -51,7 +52,8 @@ function attempt<T>(fn: () => T): Outcome<T> {
 export const usePlannerStore = defineStore('planner', () => {
   const club = useClubStore();
 
-  const units = ref<UnitSystem>('metric');
+  const unitsStore = useUnitsStore();
+  const units = computed<UnitSystem>(() => unitsStore.system);
   const flights = shallowRef<Flight[]>([]);
   const flightsLoading = ref(false);
   const flightsError = ref<string | null>(null);
@@ -72,14 +74,7 @@ export const usePlannerStore = defineStore('planner', () => {
   let generation = 0;
 
   async function ensureUnits(): Promise<void> {
-    const clubId = club.clubId;
-    if (clubId === null) return;
-    try {
-      const profile = await fetchClub(clubId);
-      units.value = profile.units === 'imperial' ? 'imperial' : 'metric';
-    } catch {
-      // Units are a display preference: a failed read keeps metric rather than blocking the screen.
-    }
+    await unitsStore.ensure();
   }
 
   async function loadFlights(): Promise<void> {
@@ -204,14 +199,18 @@ export const usePlannerStore = defineStore('planner', () => {
   });
   let gridTimer: ReturnType<typeof setTimeout> | undefined;
 
-  function computeGrid(): void {
+  const carryMap = createCarryMapClient();
+
+  /** Asks the worker for the grid of the current setup; an answer overtaken by a newer setting is dropped. */
+  async function computeGrid(): Promise<void> {
     const s = setup.value;
     const speeds = [base.value.launch.speed, s.launch.speed, ...mapFlights.value.map((f) => f.latestFit?.launchSpeedMps ?? NaN)];
     const axis = carryMapSpeedAxis(speeds);
-    const made = attempt(() => plannerGrid(s, { ...axis, steps: 61 }, { ...CARRY_MAP_ANGLES }));
+    const made = await carryMap.compute(s, { ...axis, steps: 61 }, { ...CARRY_MAP_ANGLES });
+    if (made === null) return;
     gridComputing.value = false;
     if (made.ok) {
-      grid.value = made.value;
+      grid.value = made.grid;
       gridError.value = null;
     } else {
       gridError.value = made.message;
@@ -221,7 +220,7 @@ export const usePlannerStore = defineStore('planner', () => {
   watch(gridKey, () => {
     clearTimeout(gridTimer);
     gridComputing.value = true;
-    gridTimer = setTimeout(computeGrid, GRID_DEBOUNCE_MS);
+    gridTimer = setTimeout(() => void computeGrid(), GRID_DEBOUNCE_MS);
   }, { immediate: true });
 
   // Another club in view: nothing of the previous club may stay.

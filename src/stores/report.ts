@@ -1,12 +1,12 @@
 import { defineStore } from 'pinia';
 import { computed, ref, shallowRef, watch } from 'vue';
 import type { Session } from '@shared/schemas/session';
-import { FLIGHT_STATUS_LABELS, type FlightSort, type FlightStatus } from '@shared/schemas/flight';
+import type { FlightSort, FlightStatus } from '@shared/schemas/flight';
+import { actionKeyWords, flightCsvRow, type FlightCsvRow } from '@shared/exports/flights';
 import { fetchAthletes } from '@/api/athletes';
 import { listSessions } from '@/api/sessions';
 import { listFlightActions, listFlights, listFlightsPage, type Flight, type FlightAction } from '@/api/flights';
-import { BALL_OPTIONS, ballName } from '@/components/trace/balls';
-import type { FlightCsvRow } from '@/components/report/flights-csv';
+import { BALL_OPTIONS } from '@/components/trace/balls';
 import { useLatestLoad } from '@/composables/use-latest-load';
 import { useClubStore } from './club';
 
@@ -76,30 +76,14 @@ export const useReportStore = defineStore('report', () => {
   const actionLabel = computed(() => new Map(actions.value.map((a) => [a.key, a.label])));
 
   function labelOfAction(key: string): string {
-    return actionLabel.value.get(key) ?? key.replace(/_/g, ' ');
+    return actionLabel.value.get(key) ?? actionKeyWords(key);
   }
 
   function toRow(flight: Flight): FlightRow {
-    const session = sessionById.value.get(flight.sessionId) ?? null;
-    const fit = flight.latestFit;
     return {
+      ...flightCsvRow(flight, { session: sessionById.value.get(flight.sessionId) ?? null, actionLabel: labelOfAction(flight.action) }),
       flight,
-      id: flight.id,
       status: flight.status,
-      sessionDate: session?.date ?? null,
-      venue: session?.venue ?? null,
-      athleteName: flight.athleteName,
-      actionLabel: labelOfAction(flight.action),
-      ballName: ballName(flight.ballId),
-      statusLabel: FLIGHT_STATUS_LABELS[flight.status],
-      launchSpeedMps: fit?.launchSpeedMps ?? null,
-      launchAngleDeg: fit?.launchAngleDeg ?? null,
-      carryM: fit?.carryM ?? null,
-      standardCarryM: fit?.standardCarryM ?? null,
-      cd: fit?.cd ?? null,
-      cdError: fit?.cdError ?? null,
-      model: fit?.model ?? null,
-      fittedAt: fit?.createdAt ?? null,
     };
   }
 

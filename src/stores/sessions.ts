@@ -1,18 +1,18 @@
 import { defineStore } from 'pinia';
-import { ref, shallowRef, watch } from 'vue';
-import { fetchClub } from '@/api/clubs';
+import { computed, ref, shallowRef, watch } from 'vue';
 import { deleteSession, listSessionsPage, type Session, type SessionFilters } from '@/api/sessions';
 import { useLatestLoad } from '@/composables/use-latest-load';
 import type { UnitSystem } from '@/utils/units';
 import { useClubStore } from './club';
+import { useUnitsStore } from './units';
 
 /** Rows per page of the Sessions table, and the sizes it offers. */
 export const SESSION_PAGE_SIZES = [20, 50, 100];
 
 /**
  * The Sessions list, one page at a time from the server (newest first), with its filters and page (kept while
- * the coach opens a session and comes back), and the club's display units, which every screen of sessions,
- * clips and tracing shows quantities in.
+ * the coach opens a session and comes back), and the member's display units (see the units store), which the
+ * screens of sessions, clips, tracing and reports show quantities in.
  */
 export const useSessionsStore = defineStore('sessions', () => {
   const club = useClubStore();
@@ -23,8 +23,8 @@ export const useSessionsStore = defineStore('sessions', () => {
   /** Index of the first row of the page in view, and the page size. */
   const first = ref(0);
   const rows = ref(SESSION_PAGE_SIZES[0]!);
-  const units = ref<UnitSystem>('metric');
-  let unitsClubId: number | null = null;
+  const unitsStore = useUnitsStore();
+  const units = computed<UnitSystem>(() => unitsStore.system);
 
   async function load(): Promise<void> {
     const clubId = club.clubId;
@@ -37,18 +37,9 @@ export const useSessionsStore = defineStore('sessions', () => {
     });
   }
 
-  /** Loads the club's units preference once per club; metric until it is known or when it cannot be read. */
-  async function ensureUnits(): Promise<UnitSystem> {
-    const clubId = club.clubId;
-    if (clubId === null || unitsClubId === clubId) return units.value;
-    try {
-      const profile = await fetchClub(clubId);
-      units.value = profile.units === 'imperial' ? 'imperial' : 'metric';
-      unitsClubId = clubId;
-    } catch {
-      // Units are a display preference: a failed read keeps metric rather than blocking the screen.
-    }
-    return units.value;
+  /** Resolves with the member's display units once the club's setting is known. */
+  function ensureUnits(): Promise<UnitSystem> {
+    return unitsStore.ensure();
   }
 
   /** Shows another page (the table's paginator). */
@@ -89,8 +80,6 @@ export const useSessionsStore = defineStore('sessions', () => {
       items.value = [];
       total.value = 0;
       first.value = 0;
-      unitsClubId = null;
-      units.value = 'metric';
     },
   );
 

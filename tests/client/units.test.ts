@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { displayUnit, formatQuantity, fromSi, toSi, type Quantity, type UnitSystem } from '../../src/utils/units';
+import { displayUnit, effectiveUnits, formatPixelScale, formatQuantity, fromSi, toSi, unitColumn, type Quantity, type UnitSystem } from '../../src/utils/units';
 
 // Exact factors: International Yard and Pound Agreement (1959); inHg and temperature scales: NIST SP 811 (2008), appendix B.
 
@@ -76,5 +76,47 @@ describe('units', () => {
     expect(displayUnit('speed', 'metric').symbol).toBe('m/s');
     expect(displayUnit('temperature', 'imperial').symbol).toBe('°F');
     expect(displayUnit('pressure', 'metric').symbol).toBe('hPa');
+  });
+
+  it('stores a typed imperial value in SI when a form converts it back', () => {
+    expect(toSi(100, 'length', 'imperial')).toBeCloseTo(30.48, 12);
+    expect(toSi(60, 'speed', 'imperial')).toBeCloseTo(26.8224, 12);
+    expect(toSi(32, 'temperature', 'imperial')).toBeCloseTo(273.15, 12);
+    expect(toSi(1000, 'altitude', 'imperial')).toBeCloseTo(304.8, 12);
+    expect(toSi(16, 'shortMass', 'imperial')).toBeCloseTo(0.45359237, 12);
+  });
+});
+
+describe('effectiveUnits', () => {
+  it('takes the member’s own choice over the club’s when they made one', () => {
+    expect(effectiveUnits('imperial', 'metric')).toBe('imperial');
+    expect(effectiveUnits('metric', 'imperial')).toBe('metric');
+  });
+
+  it('follows the club when the member chose club or nothing is known', () => {
+    expect(effectiveUnits('club', 'imperial')).toBe('imperial');
+    expect(effectiveUnits('club', 'metric')).toBe('metric');
+    expect(effectiveUnits(null, 'imperial')).toBe('imperial');
+    expect(effectiveUnits(undefined, null)).toBe('metric');
+  });
+});
+
+describe('unitColumn', () => {
+  it('names the unit of an export column in each system', () => {
+    expect(unitColumn('carry', 'length', 'metric')).toBe('carry_m');
+    expect(unitColumn('carry', 'length', 'imperial')).toBe('carry_ft');
+    expect(unitColumn('launch_speed', 'speed', 'metric')).toBe('launch_speed_mps');
+    expect(unitColumn('launch_speed', 'speed', 'imperial')).toBe('launch_speed_mph');
+    expect(unitColumn('air_temperature', 'temperature', 'imperial')).toBe('air_temperature_f');
+    expect(unitColumn('mass', 'shortMass', 'imperial')).toBe('mass_oz');
+  });
+});
+
+describe('formatPixelScale', () => {
+  it('shows the length one pixel covers in mm when metric and in inches when imperial', () => {
+    expect(formatPixelScale(0.001875, 'metric')).toBe('1.875 mm');
+    // 0.0254 m per inch (International Yard and Pound Agreement, 1959).
+    expect(formatPixelScale(0.00254, 'imperial')).toBe('0.1000 in');
+    expect(formatPixelScale(null, 'imperial')).toBe('—');
   });
 });

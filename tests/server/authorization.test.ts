@@ -6,6 +6,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newToken } from '../../server/auth/tokens';
 import { Invitation } from '../../server/models';
+import { accountRouter } from '../../server/routes/account';
 import { athletesRouter } from '../../server/routes/athletes';
 import { clubsRouter } from '../../server/routes/clubs';
 import { invitationsRouter } from '../../server/routes/invitations';
@@ -32,6 +33,14 @@ const club = (f: ClubFixture) => `/api/v1/clubs/${f.clubId}`;
 const targets = { removableMemberId: 0, resendInvitationId: 0, revokeInvitationId: 0 };
 
 const CASES: Case[] = [
+  {
+    // The signed-in user's own settings: anyone signed in, in any club or none.
+    method: 'patch',
+    route: '/account',
+    path: () => '/api/v1/account',
+    body: () => ({ unitsPreference: 'club' }),
+    expect: { admin: 200, coach: 200, athlete: 200, outsider: 200, anonymous: 401 },
+  },
   {
     method: 'get',
     route: '/clubs/:clubId/overview',
@@ -139,8 +148,8 @@ describe('authorization matrix', () => {
     await mail.close();
   });
 
-  it('covers every route of the club, member, athlete and invitation routers when a route is added', () => {
-    const declared = [clubsRouter, membersRouter, athletesRouter, invitationsRouter].flatMap(routesOf).sort();
+  it('covers every route of the account, club, member, athlete and invitation routers when a route is added', () => {
+    const declared = [accountRouter, clubsRouter, membersRouter, athletesRouter, invitationsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(CASES.map((c) => `${c.method} ${c.route}`))].sort();
     expect(tested).toEqual(declared);
   });

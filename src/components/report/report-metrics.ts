@@ -134,7 +134,8 @@ export function metricGroups(r: FitResult, units: UnitSystem, meta: { engineVers
       key: 'standardCarry',
       label: 'Standard-conditions carry',
       value: formatWithError(r.standardCarry, r.errors.standardCarry, 'length', units),
-      hint: 'The same launch in still sea-level standard air (15 °C, 1013.25 hPa), for fair comparison across days.',
+      // ISO 2533:1975 standard atmosphere at sea level: 288.15 K, 101 325 Pa.
+      hint: `The same launch in still sea-level standard air (${formatQuantity(288.15, 'temperature', units, { digits: 0 })}, ${formatQuantity(101325, 'pressure', units)}), for fair comparison across days.`,
     },
   ];
 

@@ -23,7 +23,7 @@ export type PreviewProblem = { problem: string };
 export function scalePreview(a: Vec2, b: Vec2, distanceM: number): ScalePreview | PreviewProblem {
   const lengthPx = Math.hypot(b.x - a.x, b.y - a.y);
   if (!(lengthPx >= 1)) return { problem: 'The two scale points are on top of each other: place them at the two ends of the known distance.' };
-  if (!Number.isFinite(distanceM) || distanceM <= 0) return { problem: 'Enter the known distance between the two points, in metres (more than 0).' };
+  if (!Number.isFinite(distanceM) || distanceM <= 0) return { problem: 'Enter the known distance between the two points (more than 0).' };
   return { lengthPx, metresPerPixel: distanceM / lengthPx };
 }
 

@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Clip, Flight, FlightAction, Job } from '../../../server/models';
 import { clipUploadsRouter } from '../../../server/routes/clip-uploads';
 import { clipsRouter } from '../../../server/routes/clips';
+import { exportsRouter } from '../../../server/routes/exports';
 import { flightsRouter } from '../../../server/routes/flights';
 import { jobsRouter } from '../../../server/routes/jobs';
 import { sessionsRouter } from '../../../server/routes/sessions';
@@ -146,6 +147,8 @@ const routes: RouteCase[] = [
   { name: 'add an action', route: '/clubs/:clubId/flight-actions', method: 'post', path: () => '/flight-actions', body: () => ({ label: `Authz action ${++seq}` }), staff: 201, write: true },
   { name: 'edit an action', route: '/clubs/:clubId/flight-actions/:actionId', method: 'patch', path: () => `/flight-actions/${ids.action}`, body: () => ({ label: 'Pitch' }), staff: 200, write: true },
   { name: 'delete an action in use', route: '/clubs/:clubId/flight-actions/:actionId', method: 'delete', path: () => `/flight-actions/${ids.usedAction}`, staff: 409, write: true },
+  { name: 'export the flights list', route: '/clubs/:clubId/flights.csv', method: 'get', path: () => '/flights.csv', staff: 200, write: false },
+  { name: 'export a session’s flights', route: '/clubs/:clubId/sessions/:sessionId/flights.csv', method: 'get', path: (own) => `/sessions/${own ? ids.session : ids.otherSession}/flights.csv`, staff: 200, write: false },
   { name: 'list jobs', route: '/clubs/:clubId/jobs', method: 'get', path: () => '/jobs', staff: 200, write: true },
   { name: 'read a job', route: '/clubs/:clubId/jobs/:jobId', method: 'get', path: () => `/jobs/${ids.job}`, staff: 200, write: true },
   { name: 'retry a job that did not fail', route: '/clubs/:clubId/jobs/:jobId/retry', method: 'post', path: () => `/jobs/${ids.job}/retry`, staff: 409, write: true },
@@ -163,8 +166,8 @@ async function call(client: ApiClient, route: RouteCase, clubId: number, own: bo
 const allowed = (staff: number | number[]) => (Array.isArray(staff) ? staff : [staff]);
 
 describe('clips API authorization', () => {
-  it('covers every route of the sessions, clips, clip uploads, flights and jobs routers', () => {
-    const declared = [sessionsRouter, clipsRouter, clipUploadsRouter, flightsRouter, jobsRouter].flatMap(routesOf).sort();
+  it('covers every route of the sessions, clips, clip uploads, flights, exports and jobs routers', () => {
+    const declared = [sessionsRouter, clipsRouter, clipUploadsRouter, flightsRouter, exportsRouter, jobsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(routes.map((r) => `${r.method} ${r.route}`))].sort();
     expect(tested).toEqual(declared);
   });

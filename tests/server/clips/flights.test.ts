@@ -158,7 +158,11 @@ describe('flights API', () => {
     expect(out.status).toBe(200);
     expect(out.headers['content-type']).toMatch(/^text\/csv/);
     expect(out.headers['content-disposition']).toBe(`attachment; filename="flight-${id}-track.csv"`);
-    expect(out.text).toBe(`frame,t,x_px,y_px,radius_px,source,confidence,x_m,y_m\n3,0.1,10.5,200,6,manual,,,\n4,0.1333333333,14,195.5,,manual,,,\n`);
+    expect(out.text).toBe(`\uFEFFframe,t_s,x_px,y_px,radius_px,source,confidence,x_m,y_m\r\n3,0.1,10.5,200,6,manual,,,\r\n4,0.1333333333,14,195.5,,manual,,,\r\n`);
+    // The export imports back as it is (BOM, CRLF and the export's own columns).
+    const again = await fx.coach.post(clubPath(fx, `/flights/${id}/track/import`), { csv: out.text });
+    expect(again.status).toBe(200);
+    expect(again.body.data).toHaveLength(2);
   });
 
   it('takes a raw text/csv body as well as JSON', async () => {
