@@ -144,7 +144,7 @@ export const BALLS: Readonly<Record<string, BallSpec>> = Object.freeze({
     crisisReynolds: [3e4, 9e4],
   },
   'shot-men': {
-    id: 'shot-men', name: "Shot, men's (7.26 kg)", sport: 'athletics (shot put)', shape: 'sphere',
+    id: 'shot-men', name: "Shot, men's senior", sport: 'athletics (shot put)', shape: 'sphere',
     massKg: { min: 7.26, max: 7.285, nominal: 7.26 },
     diameterM: { min: 0.11, max: 0.13, nominal: 0.12 },
     sizeRule: { quantity: 'diameter', min: 0.11, max: 0.13 },
@@ -153,7 +153,7 @@ export const BALLS: Readonly<Record<string, BallSpec>> = Object.freeze({
     caution: 'Heavy implement: keep the landing sector clear and follow the governing body’s safety rules and the coach’s local practice.',
   },
   'shot-women': {
-    id: 'shot-women', name: "Shot, women's (4 kg)", sport: 'athletics (shot put)', shape: 'sphere',
+    id: 'shot-women', name: "Shot, women's senior", sport: 'athletics (shot put)', shape: 'sphere',
     massKg: { min: 4.0, max: 4.025, nominal: 4.0 },
     diameterM: { min: 0.095, max: 0.11, nominal: 0.1 },
     sizeRule: { quantity: 'diameter', min: 0.095, max: 0.11 },
