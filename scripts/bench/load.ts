@@ -8,12 +8,12 @@
  * p50 / p95 / max per route.
  */
 import { existsSync } from 'node:fs';
-import { mkdir, rm } from 'node:fs/promises';
+import { mkdir } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { readTruth, renderFlightClip, type FlightTruth } from '../../server/video/synth';
 import { waitUntil } from '../../tests/support/process';
 import { BenchClient, percentiles, signUpClub } from './support/client';
-import { benchApp, benchDatabase, type BenchApp } from './support/stack';
+import { benchApp, benchDatabase, tearDown, type BenchApp } from './support/stack';
 
 const USERS = Number(process.env.LOAD_USERS ?? 50);
 const SECONDS = Number(process.env.LOAD_SECONDS ?? 300);
@@ -143,12 +143,6 @@ export async function run(): Promise<void> {
     console.log(tally.errors.length === 0 ? 'RESULT load: ok (0 errors)' : 'RESULT load: FAILED');
     if (tally.errors.length > 0) process.exitCode = 1;
   } finally {
-    if (app) {
-      app.proc.child.kill('SIGTERM');
-      await app.proc.exited;
-      await rm(app.storageDir, { recursive: true, force: true });
-    }
-    await db.close();
-    db.stop();
+    await tearDown(app, db);
   }
 }
