@@ -10,13 +10,13 @@
  *    unanswered, and the app (same process) answering writes again afterwards.
  */
 import { existsSync } from 'node:fs';
-import { mkdir, readdir, rm } from 'node:fs/promises';
+import { mkdir, readdir } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { QueryTypes } from 'sequelize';
 import { renderFlightClip } from '../../server/video/synth';
 import { alive, startProcess, waitUntil, type ServerProcess } from '../../tests/support/process';
 import { BenchClient, signUpClub } from './support/client';
-import { benchApp, benchDatabase, childProcesses, processesMentioning, type BenchApp, type BenchDatabase } from './support/stack';
+import { benchApp, benchDatabase, childProcesses, processesMentioning, tearDown, type BenchApp, type BenchDatabase } from './support/stack';
 
 const KILLS = Number(process.env.FAULTS_KILLS ?? 10);
 const WRITES = Number(process.env.FAULTS_WRITES ?? 300);
@@ -222,12 +222,6 @@ export async function run(): Promise<void> {
     if (!only || only === 'db') await databaseRestart(db, app, client, clubId);
   } finally {
     for (const proc of started) if (proc.child.exitCode === null && proc.child.signalCode === null) proc.child.kill('SIGKILL');
-    if (app) {
-      app.proc.child.kill('SIGTERM');
-      await app.proc.exited;
-      await rm(app.storageDir, { recursive: true, force: true });
-    }
-    await db.close();
-    db.stop();
+    await tearDown(app, db);
   }
 }

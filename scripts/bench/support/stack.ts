@@ -3,7 +3,7 @@
  * `.data/`, own port, so stopping it touches nobody else's), the app and workers as child processes.
  */
 import { execFileSync } from 'node:child_process';
-import { mkdtemp, readdir, readFile } from 'node:fs/promises';
+import { mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Sequelize } from 'sequelize';
@@ -65,6 +65,17 @@ export async function benchApp(db: BenchDatabase, extra: Record<string, string> 
     200,
   );
   return { proc, base, storageDir };
+}
+
+/** Stops the app (SIGTERM, waited for) and removes its storage, then closes and stops the bench database. */
+export async function tearDown(app: BenchApp | null, db: BenchDatabase): Promise<void> {
+  if (app) {
+    if (app.proc.child.exitCode === null) app.proc.child.kill('SIGTERM');
+    await app.proc.exited;
+    await rm(app.storageDir, { recursive: true, force: true });
+  }
+  await db.close();
+  db.stop();
 }
 
 /** Pids of the direct children of `pid`, with their command lines (from /proc). */

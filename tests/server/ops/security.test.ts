@@ -156,6 +156,19 @@ describe('the OAuth stand-in', () => {
   });
 });
 
+describe('the stand-ins runner', () => {
+  it('refuses to start any stand-in with NODE_ENV=production', () => {
+    let failure: { status?: number; stdout?: Buffer } = {};
+    try {
+      execFileSync(process.execPath, ['--import', 'tsx', 'server/fakes/run.ts'], { cwd: ROOT, env: { PATH: process.env.PATH, NODE_ENV: 'production', ENV_FILE: 'none' }, stdio: 'pipe' });
+    } catch (err) {
+      failure = err as typeof failure;
+    }
+    expect(failure.status).toBe(1);
+    expect(String(failure.stdout)).toContain('The local stand-ins never run with NODE_ENV=production');
+  });
+});
+
 describe('password hashes', () => {
   it('defaults to the OWASP scrypt cost N = 2^17 when nothing lowers it', () => {
     const out = execFileSync(process.execPath, ['--import', 'tsx', '--eval', "import('./server/config.ts').then((m) => console.log(m.config.passwords.scryptLogN))"], {

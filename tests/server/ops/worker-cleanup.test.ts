@@ -144,3 +144,48 @@ describe('the sweep of work folders at worker start', () => {
     await rm(root, { recursive: true, force: true });
   });
 });
+
+describe('an upload cut off by the client', () => {
+  it('removes its work folder as soon as the connection drops', async () => {
+    const { request: httpRequest } = await import('node:http');
+    const sessionId = await createSession(fx.coach, fx.clubId);
+    const server = fx.app.listen(0, '127.0.0.1');
+    await new Promise((resolve) => server.once('listening', resolve));
+    try {
+      const port = (server.address() as { port: number }).port;
+      const boundary = 'arcwright-cut-boundary';
+      const req = httpRequest({
+        host: '127.0.0.1',
+        port,
+        method: 'POST',
+        path: `/api/v1/clubs/${fx.clubId}/sessions/${sessionId}/clips`,
+        headers: {
+          'content-type': `multipart/form-data; boundary=${boundary}`,
+          'content-length': 10 * 1024 * 1024,
+          'x-csrf-token': fx.coach.csrfToken!,
+          cookie: await sessionCookie(),
+        },
+      });
+      req.on('error', () => undefined);
+      req.write(`--${boundary}\r\nContent-Disposition: form-data; name="video"; filename="cut.mp4"\r\nContent-Type: video/mp4\r\n\r\n`);
+      req.write(Buffer.alloc(256 * 1024, 7));
+      // The upload is being received into its folder...
+      await waitUntil('the upload folder', async () => ((await workFolders()).some((n) => n.startsWith('upload-')) ? true : null), 10_000, 25);
+      // ...and the phone loses its connection.
+      req.destroy();
+      await waitUntil('the upload folder to go', async () => ((await workFolders()).length === 0 ? true : null), 10_000, 50);
+      expect(await workFolders()).toEqual([]);
+    } finally {
+      await new Promise((resolve) => server.close(resolve));
+    }
+  });
+});
+
+/** The coach's session cookie, for a request made without supertest. */
+async function sessionCookie(): Promise<string> {
+  const res = await fx.coach.agent.get('/api/v1/auth/me');
+  const jar = (fx.coach.agent as unknown as { jar: { getCookies: (access: unknown) => { name: string; value: string }[] } }).jar;
+  const cookies = jar.getCookies({ domain: '127.0.0.1', path: '/', secure: false, script: false });
+  expect(res.status).toBe(200);
+  return cookies.map((c) => `${c.name}=${c.value}`).join('; ');
+}
