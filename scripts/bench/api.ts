@@ -12,12 +12,14 @@
  */
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
-import { createServer } from 'node:net';
+import { once } from 'node:events';
+import { createServer, type AddressInfo } from 'node:net';
 import { availableParallelism, loadavg } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import autocannon from 'autocannon';
 import mariadb from 'mariadb';
+import { mulberry32 } from '../../shared/physics';
 
 const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const HOST = '127.0.0.1';
@@ -45,28 +47,13 @@ const PASSWORD = 'bench-password-1';
 
 const P95_TARGET_MS = 50;
 
-/** A small deterministic generator, so that every seeding holds the same club. */
-function random(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
+/** A port the system has free on HOST just now. */
 async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const server = createServer();
-    server.once('error', reject);
-    server.listen(0, HOST, () => {
-      const address = server.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      server.close(() => resolve(port));
-    });
-  });
+  const probe = createServer().listen(0, HOST);
+  await once(probe, 'listening');
+  const { port } = probe.address() as AddressInfo;
+  await new Promise((done) => probe.close(done));
+  return port;
 }
 
 type Sql = (sql: string, values?: unknown[]) => Promise<unknown>;
@@ -129,7 +116,7 @@ async function seedClub(): Promise<{ clubId: number; athleteId: number; flightId
     const tx: Sql = (text, values) => sequelize.query(text, { replacements: values, transaction });
     const selectTx = <T extends object>(text: string, values: unknown[] = []) =>
       sequelize.query<T>(text, { type: QueryTypes.SELECT, replacements: values, transaction });
-    const rand = random(9);
+    const rand = mulberry32(9);
     await tx("INSERT INTO clubs (name, sport_focus, units, default_conditions, created_at, updated_at) VALUES (?, 'multi-sport', 'metric', NULL, ?, ?)", [CLUB_NAME, now, now]);
     const [club] = await selectTx<{ id: number }>('SELECT id FROM clubs WHERE name = ?', [CLUB_NAME]);
     const clubId = Number(club!.id);

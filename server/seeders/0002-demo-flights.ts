@@ -18,7 +18,8 @@ import { readdir, rm, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Transaction } from 'sequelize';
 import { BALLS } from '../../shared/physics';
-import { calibrationInputSchema } from '../../shared/schemas/calibration';
+import { calibrationInputSchema, type CalibrationInput } from '../../shared/schemas/calibration';
+import type { TrackPointInput } from '../../shared/schemas/track';
 import { config } from '../config';
 import { enqueue } from '../jobs/queue';
 import { log } from '../logger';
@@ -113,6 +114,25 @@ interface Seeded {
 }
 
 /** Inserts one demo session with its clips, calibrations, flights, points and jobs. */
+/** A flight of a seeded clip with the clip's calibration, its traced points and its queued fit. */
+async function insertCalibratedFlight(
+  clubId: number,
+  clipId: number,
+  calibration: CalibrationInput,
+  flight: { athleteProfileId: number; action: string; ballId: string; frameStart: number; frameEnd: number; notes: string | null },
+  points: TrackPointInput[],
+  transaction: Transaction,
+): Promise<void> {
+  const input = calibrationInputSchema.parse(calibration);
+  await Calibration.create({ clubId, clipId, input, ...calibrationValues(input), supersededAt: null }, { transaction });
+  const row = await Flight.create(
+    { clubId, clipId, ...flight, status: points.length > 0 ? 'traced' : 'uploaded', attentionReason: null },
+    { transaction },
+  );
+  await insertPoints(row.id, points, transaction);
+  await enqueue({ clubId, type: 'flight.fit', payload: { flightId: row.id }, clipId, flightId: row.id }, transaction);
+}
+
 /** Inserts a seeded rep: a clip row without footage, its calibration, the flight, its points and its fit job. */
 async function insertTrack(clubId: number, sessionId: number, track: SeededDemoTrack, athletes: Map<string, number>, transaction: Transaction): Promise<void> {
   const { clip: c, block } = track;
@@ -144,25 +164,8 @@ async function insertTrack(clubId: number, sessionId: number, track: SeededDemoT
     },
     { transaction },
   );
-  const input = calibrationInputSchema.parse(track.calibration);
-  await Calibration.create({ clubId, clipId: clip.id, input, ...calibrationValues(input), supersededAt: null }, { transaction });
-  const row = await Flight.create(
-    {
-      clubId,
-      clipId: clip.id,
-      athleteProfileId: athletes.get(block.athlete)!,
-      action: block.action,
-      ballId: block.ballId,
-      frameStart: track.frameStart,
-      frameEnd: track.frameEnd,
-      status: 'traced',
-      attentionReason: null,
-      notes: null,
-    },
-    { transaction },
-  );
-  await insertPoints(row.id, track.points, transaction);
-  await enqueue({ clubId, type: 'flight.fit', payload: { flightId: row.id }, clipId: clip.id, flightId: row.id }, transaction);
+  const flight = { athleteProfileId: athletes.get(block.athlete)!, action: block.action, ballId: block.ballId, notes: null };
+  await insertCalibratedFlight(clubId, clip.id, track.calibration, { ...flight, frameStart: track.frameStart, frameEnd: track.frameEnd }, track.points, transaction);
 }
 
 async function insertSession(
@@ -206,27 +209,9 @@ async function insertSession(
     await clip.save({ transaction });
 
     if (!BALLS[flight.ballId]) throw new Error(`Demo flight "${flight.key}" names the ball "${flight.ballId}", which is not in the catalogue.`);
-    const input = calibrationInputSchema.parse(r.calibration);
-    await Calibration.create({ clubId, clipId: clip.id, input, ...calibrationValues(input), supersededAt: null }, { transaction });
-
-    const row = await Flight.create(
-      {
-        clubId,
-        clipId: clip.id,
-        athleteProfileId: athletes.get(flight.athlete)!,
-        action: flight.action,
-        ballId: flight.ballId,
-        frameStart: r.frameStart,
-        frameEnd: r.frameEnd,
-        status: r.points.length > 0 ? 'traced' : 'uploaded',
-        attentionReason: null,
-        notes: flight.notes,
-      },
-      { transaction },
-    );
-    await insertPoints(row.id, r.points, transaction);
     await enqueue({ clubId, type: 'clip.process', payload: { clipId: clip.id }, clipId: clip.id }, transaction);
-    await enqueue({ clubId, type: 'flight.fit', payload: { flightId: row.id }, clipId: clip.id, flightId: row.id }, transaction);
+    const planned = { athleteProfileId: athletes.get(flight.athlete)!, action: flight.action, ballId: flight.ballId, notes: flight.notes };
+    await insertCalibratedFlight(clubId, clip.id, r.calibration, { ...planned, frameStart: r.frameStart, frameEnd: r.frameEnd }, r.points, transaction);
     seeded.push({ clipId: clip.id, videoPath: r.videoPath, sourceKey: clip.sourceKey });
   }
   for (const track of seededTracks(plan)) await insertTrack(clubId, session.id, track, athletes, transaction);

@@ -2,11 +2,11 @@
  * Club profile, Overview counts (members and profiles here, the other resources from their services),
  * members and their roles.
  */
-import { fn, col, Op, type Transaction } from 'sequelize';
+import { fn, col, Op, QueryTypes, type Transaction } from 'sequelize';
 import { pageOffset, type PageMeta, type PaginationQuery } from '../../shared/schemas/pagination';
 import type { ClubOverview, ClubProfile, ClubUpdateBody, MemberSummary } from '../../shared/schemas/club';
 import type { Role } from '../../shared/types/api';
-import { withTransaction } from '../db';
+import { sequelize, withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { AthleteProfile, Club, Membership, User } from '../models';
@@ -48,8 +48,41 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
   return toClubProfile(club);
 }
 
+/** The Overview of a coach or admin, who see all of the club: the club and every count in one query. */
+async function staffOverview(clubCtx: ClubContext): Promise<ClubOverview> {
+  const count = (table: string, extra = '') => `(SELECT COUNT(*) FROM ${table} WHERE club_id = c.id${extra})`;
+  const [row] = await sequelize.query<Record<string, number | string | null>>(
+    `SELECT c.id, c.name, c.sport_focus AS sportFocus, c.units,
+            ${count('memberships', " AND role = 'admin'")} AS admins, ${count('memberships', " AND role = 'coach'")} AS coaches,
+            ${count('memberships', " AND role = 'athlete'")} AS athletes, ${count('athlete_profiles')} AS athleteProfiles,
+            ${count('sessions')} AS sessions, ${count('clips')} AS clips, ${count('clips', " AND status = 'processing'")} AS clipsProcessing,
+            ${count('flights')} AS flights, ${count('flights', " AND status = 'needs_attention'")} AS flightsNeedingAttention
+       FROM clubs c WHERE c.id = ?`,
+    { type: QueryTypes.SELECT, replacements: [clubCtx.id] },
+  );
+  if (!row) throw notFound('club');
+  const n = (key: string) => Number(row[key] ?? 0);
+  return {
+    club: { id: n('id'), name: String(row.name), sportFocus: row.sportFocus as ClubProfile['sportFocus'], units: row.units as ClubProfile['units'] },
+    role: clubCtx.role,
+    counts: {
+      members: n('admins') + n('coaches') + n('athletes'),
+      admins: n('admins'),
+      coaches: n('coaches'),
+      athletes: n('athletes'),
+      athleteProfiles: n('athleteProfiles'),
+      sessions: n('sessions'),
+      clips: n('clips'),
+      flights: n('flights'),
+      flightsNeedingAttention: n('flightsNeedingAttention'),
+      clipsProcessing: n('clipsProcessing'),
+    },
+  };
+}
+
 export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
-  // The counts are independent: one round trip's wait for all of them.
+  if (clubCtx.role !== 'athlete') return staffOverview(clubCtx);
+  // An athlete's counts are of what they may see (their own): each resource's service counts them.
   const [club, byRole, athleteProfiles, sessions, clips, flights, flightsNeedingAttention, clipsProcessing] = await Promise.all([
     findClub(clubCtx.id),
     Membership.findAll({

@@ -23,9 +23,9 @@ import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
 import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { AthleteProfile, Clip, Flight, FlightAction, type Job } from '../models';
+import type { JobSummary } from '../../shared/schemas/clip';
+import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
 import { currentCalibration, toCalibrationDto } from './calibration';
-import { latestJobs, toJobSummary } from './jobs';
 import { enqueueRefits } from './refits';
 import { pointsOf } from './tracks';
 import { findVisibleClip, findVisibleFlight, findVisibleFlightWithClip, flightScope } from './visibility';
@@ -171,13 +171,12 @@ type FlightCore = Pick<
 
 /**
  * The list view of flights by id, in the order of `ids`: one query for the flight with its athlete's name,
- * session, point count and the latest fit's summary (through flights.latest_fit_id, reading only the
- * summary's fields of the fit's JSON), and one for the jobs. Lists of any length cost the same two round trips.
+ * session, point count, latest follow or fit job and the latest fit's summary (through flights.latest_fit_id,
+ * reading only the summary's fields of the fit's JSON). Lists of any length cost one round trip.
  */
 export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
   if (ids.length === 0) return [];
-  const [rows, jobs] = await Promise.all([
-    sequelize.query<FlightListRow & FlightCore>(
+  const rows = await sequelize.query<FlightListRow & FlightCore & { job: string | JobSummary | null }>(
       `SELECT f.id, f.club_id AS clubId, f.clip_id AS clipId, f.athlete_profile_id AS athleteProfileId, f.action, f.ball_id AS ballId,
               f.frame_start AS frameStart, f.frame_end AS frameEnd, f.status, f.attention_reason AS attentionReason, f.notes,
               f.created_at AS createdAt, f.updated_at AS updatedAt,
@@ -186,24 +185,26 @@ export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
               lf.id AS fitId, lf.model AS fitModel, lf.status AS fitStatus, lf.created_at AS fitCreatedAt,
               lf.launch_speed_mps AS fitSpeed, lf.launch_angle_deg AS fitAngle, lf.carry_m AS fitCarry,
               JSON_VALUE(lf.result, '$.cd') AS fitCd, JSON_VALUE(lf.result, '$.cdError') AS fitCdError,
-              JSON_VALUE(lf.result, '$.standardCarry') AS fitStandardCarry, lf.warnings AS fitWarnings
+              JSON_VALUE(lf.result, '$.standardCarry') AS fitStandardCarry, lf.warnings AS fitWarnings,
+              (SELECT JSON_OBJECT('id', j.id, 'type', j.type, 'status', j.status, 'progress', j.progress, 'error', j.error)
+                 FROM jobs j WHERE j.flight_id = f.id AND j.type IN ('flight.follow', 'flight.fit') ORDER BY j.id DESC LIMIT 1) AS job
          FROM flights f
          JOIN clips c ON c.id = f.clip_id
          LEFT JOIN athlete_profiles a ON a.id = f.athlete_profile_id
          LEFT JOIN fits lf ON lf.id = f.latest_fit_id
         WHERE f.id IN (:ids)`,
-      { type: QueryTypes.SELECT, replacements: { ids } },
-    ),
-    latestJobs('flightId', ids, ['flight.follow', 'flight.fit']),
-  ]);
+    { type: QueryTypes.SELECT, replacements: { ids } },
+  );
   const byId = new Map(rows.map((r) => [Number(r.id), r]));
   return ids.flatMap((id) => {
     const row = byId.get(id);
-    return row ? [toDto({ ...row, id, clubId: Number(row.clubId), clipId: Number(row.clipId), athleteProfileId: Number(row.athleteProfileId) }, row, jobs.get(id))] : [];
+    if (!row) return [];
+    const job = typeof row.job === 'string' ? (JSON.parse(row.job) as JobSummary) : row.job;
+    return [toDto({ ...row, id, clubId: Number(row.clubId), clipId: Number(row.clipId), athleteProfileId: Number(row.athleteProfileId) }, row, job ?? undefined)];
   });
 }
 
-function toDto(f: FlightCore, row: FlightListRow | undefined, job: Job | undefined): FlightDto {
+function toDto(f: FlightCore, row: FlightListRow | undefined, job: JobSummary | undefined): FlightDto {
   return {
     id: f.id,
     clubId: f.clubId,
@@ -220,7 +221,7 @@ function toDto(f: FlightCore, row: FlightListRow | undefined, job: Job | undefin
     notes: f.notes ?? null,
     pointCount: row ? Number(row.pointCount) : 0,
     latestFit: row ? fitSummaryOf(row) : null,
-    job: job ? toJobSummary(job) : null,
+    job: job ? { id: Number(job.id), type: job.type, status: job.status, progress: Number(job.progress), error: job.error ?? null } : null,
     createdAt: new Date(f.createdAt).toISOString(),
     updatedAt: new Date(f.updatedAt).toISOString(),
   };
