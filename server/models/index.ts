@@ -10,6 +10,7 @@ import { Calibration, initCalibration } from './calibration';
 import { Clip, initClip } from './clip';
 import { Club, initClub } from './club';
 import { ClubSubscription, initClubSubscription } from './club-subscription';
+import { CoachNote, initCoachNote } from './coach-note';
 import { Fit, initFit } from './fit';
 import { Flight, initFlight } from './flight';
 import { FlightAction, initFlightAction } from './flight-action';
@@ -20,6 +21,8 @@ import { PasswordReset, initPasswordReset } from './password-reset';
 import { Session, initSession } from './session';
 import { TrackPoint, initTrackPoint } from './track-point';
 import { User, initUser } from './user';
+import { WorkloadEntry, initWorkloadEntry } from './workload-entry';
+import { WorkloadThreshold, initWorkloadThreshold } from './workload-threshold';
 
 initUser(sequelize);
 initClub(sequelize);
@@ -38,6 +41,9 @@ initPasswordReset(sequelize);
 initClubSubscription(sequelize);
 initBillingEvent(sequelize);
 initBillingInvoice(sequelize);
+initWorkloadEntry(sequelize);
+initWorkloadThreshold(sequelize);
+initCoachNote(sequelize);
 
 // Foreign keys are `<model>_id` columns; deleting a club removes its memberships and profiles (see migrations).
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
@@ -83,6 +89,15 @@ ClubSubscription.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
 Club.hasMany(BillingInvoice, { foreignKey: 'clubId', as: 'invoices' });
 BillingInvoice.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
 
+// Workload entries and thresholds go with their club (and an entry with its athlete); notes go with their
+// flight or session, and keep their text when the author's account is deleted (author_user_id SET NULL).
+Club.hasMany(WorkloadEntry, { foreignKey: 'clubId', as: 'workloadEntries' });
+AthleteProfile.hasMany(WorkloadEntry, { foreignKey: 'athleteProfileId', as: 'workloadEntries' });
+Club.hasMany(WorkloadThreshold, { foreignKey: 'clubId', as: 'workloadThresholds' });
+Flight.hasMany(CoachNote, { foreignKey: 'flightId', as: 'coachNotes' });
+Session.hasMany(CoachNote, { foreignKey: 'sessionId', as: 'coachNotes' });
+CoachNote.belongsTo(User, { foreignKey: 'authorUserId', as: 'author' });
+
 export {
   sequelize,
   AthleteProfile,
@@ -92,6 +107,7 @@ export {
   Clip,
   Club,
   ClubSubscription,
+  CoachNote,
   Fit,
   Flight,
   FlightAction,
@@ -102,4 +118,6 @@ export {
   Session,
   TrackPoint,
   User,
+  WorkloadEntry,
+  WorkloadThreshold,
 };

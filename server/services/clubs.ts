@@ -11,6 +11,7 @@ import type { ClubContext } from '../http/types';
 import { AthleteProfile, Club, Membership, User } from '../models';
 import { countClips, countProcessingClips } from './clips';
 import { countFlights } from './flights';
+import { getStaffOverview } from './overview';
 import { countPendingAthleteInvitations } from './invitations';
 import { assertAthleteSeatFree } from './seats';
 import { countSessions } from './sessions';
@@ -22,6 +23,7 @@ export function toClubProfile(club: Club): ClubProfile {
     name: club.name,
     sportFocus: club.sportFocus,
     units: club.units,
+    timeZone: club.timeZone,
     defaultConditions: club.defaultConditions ?? null,
   };
 }
@@ -43,6 +45,7 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
   if (body.name !== undefined) club.name = body.name;
   if (body.sportFocus !== undefined) club.sportFocus = body.sportFocus;
   if (body.units !== undefined) club.units = body.units;
+  if (body.timeZone !== undefined) club.timeZone = body.timeZone;
   await club.save();
   return toClubProfile(club);
 }
@@ -79,6 +82,7 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
     club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
     role: clubCtx.role,
     counts,
+    staff: clubCtx.role === 'athlete' ? null : await getStaffOverview(club.id),
   };
 }
 
