@@ -7,7 +7,7 @@ import type { MyFlights, MyProgressPoint } from '../../shared/schemas/my-flights
 import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { AthleteProfile, Flight } from '../models';
+import { AthleteProfile, Flight, Session } from '../models';
 import { toFlightDtos } from './flights';
 import { sharedNotesForAthlete } from './notes';
 import { personalBests } from './overview';
@@ -46,12 +46,15 @@ export async function getMyFlights(club: ClubContext, userId: number, now = new 
     throw new ApiError('NOT_FOUND', 'You have no athlete profile in this club yet. Ask a coach to link your account to your profile on the Squad screen.');
   }
   const recent = await Flight.findAll({ where: { clubId: club.id, athleteProfileId: profile.id }, order: [['id', 'DESC']], limit: RECENT_SHOWN });
-  const [recentFlights, bests, series, sharedNotes, workload] = await Promise.all([
+  const [flights, bests, series, sharedNotes, workload] = await Promise.all([
     toFlightDtos(recent),
     personalBests(club.id, profile.id, 50),
     progress(club.id, profile.id),
     sharedNotesForAthlete(club, userId),
     athleteWorkload(club, profile.id, PROGRESS_WEEKS, now),
   ]);
+  const sessions = await Session.findAll({ where: { id: [...new Set(flights.map((f) => f.sessionId))] }, attributes: ['id', 'date'] });
+  const dayOf = new Map(sessions.map((s) => [s.id, s.date]));
+  const recentFlights = flights.map((f) => ({ ...f, day: dayOf.get(f.sessionId) ?? f.createdAt.slice(0, 10) }));
   return { athlete: { id: profile.id, displayName: profile.displayName }, recentFlights, personalBests: bests, progress: series, sharedNotes, workload };
 }

@@ -16,7 +16,8 @@ export interface MyProgressPoint {
 
 export interface MyFlights {
   athlete: { id: number; displayName: string };
-  recentFlights: Flight[];
+  /** The newest flights, each with the day of its session. */
+  recentFlights: (Flight & { day: string })[];
   personalBests: OverviewPersonalBest[];
   /** Fitted flights per action, oldest first. */
   progress: Record<string, MyProgressPoint[]>;

@@ -62,8 +62,11 @@ export const YOUTH_CAUTION_TEXT =
   'athlete’s governing body and local rules, and ask a licensed medical professional about pain, soreness ' +
   'or any doubt. The club’s thresholds are a reminder, not medical advice.';
 
-/** One line naming what went over, e.g. "Punt: 34 this week (club threshold 30)". */
+/**
+ * One line naming what went over, e.g. "Punt: 34 this week (club threshold 30 a week)". Cautions are only
+ * ever raised for today and this week, so the line says so in those words.
+ */
 export function cautionLine(c: WorkloadCaution, actionLabel: string): string {
-  const period = c.period === 'day' ? `on ${c.when}` : `in week ${c.when}`;
-  return `${actionLabel}: ${c.count} ${period} (club threshold ${c.limit})`;
+  const period = c.period === 'day' ? 'today' : 'this week';
+  return `${actionLabel}: ${c.count} ${period} (club threshold ${c.limit} a ${c.period})`;
 }

@@ -115,6 +115,7 @@ describe('overview: the staff’s start of the day', () => {
     expect(data.athlete).toEqual({ id: athleteId, displayName: 'Fixture Athlete' });
     expect(data.recentFlights).toHaveLength(4);
     expect(data.recentFlights.every((fl) => fl.athleteId === athleteId)).toBe(true);
+    expect(data.recentFlights.map((fl) => fl.day)).toEqual(['2026-05-08', '2026-05-08', '2026-05-08', '2026-05-08']);
     expect(data.personalBests.map((b) => b.standardCarryM)).toEqual([49]);
     expect(data.progress.punt!.map((p) => p.standardCarryM)).toEqual([48, 49, 47]);
     expect(data.workload.athleteId).toBe(athleteId);
