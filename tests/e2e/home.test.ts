@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, settle, signIn, signOut } from './support/browser';
+import type { Browser } from 'playwright-core';
+import { DEMO_USERS, launchBrowser, openChartPage, screenshot, settle, signIn, signOut } from './support/browser';
 import { e2eQuery } from './support/db';
 
 /**
@@ -10,15 +10,6 @@ import { e2eQuery } from './support/db';
 
 const FIT_WAIT_MS = 90000;
 const OTHER_ATHLETES = ['Orrin Calloway', 'Saskia Fenwright', 'Bram Tolliver', 'Juno Pelham'];
-
-async function openPage(browser: Browser): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
-  const context = await newContext(browser);
-  await context.addInitScript(() => {
-    (window as unknown as { __ARCWRIGHT_NO_ANIMATION__: boolean }).__ARCWRIGHT_NO_ANIMATION__ = true;
-  });
-  const page = await context.newPage();
-  return { context, page, errors: collectPageErrors(page) };
-}
 
 /** Waits until the worker has fitted a demo flight; returns it. */
 async function fittedFlight(): Promise<{ id: number; clipId: number }> {
@@ -53,7 +44,7 @@ describe('home screens', () => {
     const reason = 'The scale disagrees with the gravity fitted from the flight by 7 %. Check the calibration, then fit again.';
     await e2eQuery("UPDATE flights SET status = 'needs_attention', attention_reason = ?, updated_at = NOW() WHERE id = ?", [reason, flight.id]);
 
-    const { context, page, errors } = await openPage(browser);
+    const { context, page, errors } = await openChartPage(browser);
     try {
       await signIn(page, DEMO_USERS.coach.email);
       const attention = page.getByTestId('overview-attention');
@@ -89,7 +80,7 @@ describe('home screens', () => {
     const own = await e2eQuery<{ id: number }[]>('SELECT id FROM flights WHERE athlete_profile_id = ? ORDER BY id LIMIT 1', [athleteId]);
     const noteText = `Shared from the report ${Date.now().toString(36)}: keep the follow-through long.`;
 
-    const { context, page, errors } = await openPage(browser);
+    const { context, page, errors } = await openChartPage(browser);
     try {
       await signIn(page, DEMO_USERS.coach.email);
       // The Squad links the athlete's page, where the coach counts reps that were not filmed.
@@ -134,6 +125,28 @@ describe('home screens', () => {
       const text = (await page.locator('main').textContent()) ?? '';
       for (const name of OTHER_ATHLETES) expect(text).not.toContain(name);
       await screenshot(page, 'home-05-my-flights');
+      expect(errors).toEqual([]);
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('shows the admin the club’s time zone and caution thresholds, and says what is missing in a new row', async () => {
+    const { context, page, errors } = await openChartPage(browser);
+    try {
+      await signIn(page, DEMO_USERS.admin.email);
+      await page.getByTestId('rail-club').click();
+      await expect(page.getByTestId('club-time-zone').textContent()).resolves.toContain('Europe/London');
+      const thresholds = page.getByTestId('club-thresholds');
+      await thresholds.getByTestId('threshold-row').first().waitFor();
+      const rows = await thresholds.getByTestId('threshold-row').count();
+      expect(rows).toBeGreaterThan(0);
+      await thresholds.getByText('Add a threshold').click();
+      await page.getByTestId('thresholds-save').click();
+      await thresholds.getByText('Pick an action.').first().waitFor();
+      await screenshot(page, 'home-06-club-thresholds');
+      await thresholds.getByRole('button', { name: `Remove row ${rows + 1}` }).click();
+      await expect(thresholds.getByTestId('threshold-row').count()).resolves.toBe(rows);
       expect(errors).toEqual([]);
     } finally {
       await context.close();
