@@ -19,8 +19,9 @@ const PROGRESS_WEEKS = 6;
 async function progress(clubId: number, athleteId: number): Promise<Record<string, MyProgressPoint[]>> {
   const rows = await sequelize.query<MyProgressPoint & { action: string }>(
     `SELECT f.id AS flightId, f.action, DATE_FORMAT(s.date, '%Y-%m-%d') AS day, ft.launch_speed_mps AS launchSpeedMps, ft.standard_carry_m AS standardCarryM
-       FROM (SELECT flight_id, MAX(id) AS id FROM fits WHERE club_id = :clubId GROUP BY flight_id) lf
-       JOIN fits ft ON ft.id = lf.id
+       FROM (SELECT l.flight_id, MAX(l.id) AS id FROM flights lfl JOIN fits l ON l.flight_id = lfl.id
+              WHERE lfl.club_id = :clubId AND lfl.athlete_profile_id = :athleteId GROUP BY l.flight_id) lf
+       JOIN fits ft ON ft.flight_id = lf.flight_id AND ft.id = lf.id
        JOIN flights f ON f.id = lf.flight_id
        JOIN clips c ON c.id = f.clip_id
        JOIN sessions s ON s.id = c.session_id

@@ -124,6 +124,16 @@ describe('overview: the staff’s start of the day', () => {
     expect(text).not.toContain('Unlinked Athlete');
   });
 
+  it('shows a new personal best at once when a later fit beats the old one', async () => {
+    at('2026-05-09T09:00:00Z');
+    expect((await staffOverview()).personalBests.find((b) => b.athleteId === otherId)?.standardCarryM).toBe(52);
+    const s = await recordSession(f.clubId, '2026-05-09', 'Harbour pitch');
+    const [beaten] = await recordFlights(f.clubId, s.clipId, [{ athleteId: otherId, fit: { launchSpeedMps: 27, launchAngleDeg: 40, standardCarryM: 55 } }]);
+    const bests = (await staffOverview()).personalBests;
+    expect(bests[0]).toMatchObject({ athleteId: otherId, flightId: beaten, standardCarryM: 55, day: '2026-05-09' });
+    expect(bests).toHaveLength(2);
+  });
+
   it('answers 403 to staff asking for My flights (their start is the Overview)', async () => {
     const res = await f.coach.get(`/api/v1/clubs/${f.clubId}/my-flights`);
     expect(res.status).toBe(403);
