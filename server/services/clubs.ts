@@ -65,6 +65,15 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
         ? 0
         : 1
       : await AthleteProfile.count({ where: { clubId: club.id } });
+  // The resource counts and the staff's start of the day are independent reads: run them side by side.
+  const [sessions, clips, flights, flightsNeedingAttention, clipsProcessing, staff] = await Promise.all([
+    countSessions(clubCtx),
+    countClips(clubCtx),
+    countFlights(clubCtx),
+    countFlights(clubCtx, 'needs_attention'),
+    countProcessingClips(clubCtx),
+    clubCtx.role === 'athlete' ? null : getStaffOverview(club.id),
+  ]);
   const counts: ClubOverview['counts'] = {
     members: roleCount('admin') + roleCount('coach') + roleCount('athlete'),
     admins: roleCount('admin'),
@@ -72,17 +81,17 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
     athletes: roleCount('athlete'),
     athleteProfiles,
     // Each resource counts what the caller may see of it (an athlete: their own).
-    sessions: await countSessions(clubCtx),
-    clips: await countClips(clubCtx),
-    flights: await countFlights(clubCtx),
-    flightsNeedingAttention: await countFlights(clubCtx, 'needs_attention'),
-    clipsProcessing: await countProcessingClips(clubCtx),
+    sessions,
+    clips,
+    flights,
+    flightsNeedingAttention,
+    clipsProcessing,
   };
   return {
     club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
     role: clubCtx.role,
     counts,
-    staff: clubCtx.role === 'athlete' ? null : await getStaffOverview(club.id),
+    staff,
   };
 }
 
