@@ -32,8 +32,11 @@ import { healthRouter } from './routes/health';
 import { invitationLinksRouter, invitationsRouter } from './routes/invitations';
 import { jobsRouter } from './routes/jobs';
 import { membersRouter } from './routes/members';
+import { myFlightsRouter } from './routes/my-flights';
+import { notesRouter } from './routes/notes';
 import { passwordResetRouter } from './routes/password-reset';
 import { sessionsRouter } from './routes/sessions';
+import { workloadRouter } from './routes/workload';
 
 export interface AppOptions {
   /** Overrides of the sign-in limit (failed attempts per IP and e-mail); tests lower it. */
@@ -129,6 +132,9 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(exportsRouter);
   api.use(flightsRouter);
   api.use(jobsRouter);
+  api.use(workloadRouter);
+  api.use(notesRouter);
+  api.use(myFlightsRouter);
 
   options.extraApiRoutes?.(api);
   api.use(apiNotFound);

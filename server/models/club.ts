@@ -14,6 +14,8 @@ export class Club extends Model<InferAttributes<Club>, InferCreationAttributes<C
   declare name: string;
   declare sportFocus: CreationOptional<SportFocus>;
   declare units: CreationOptional<Units>;
+  /** IANA time zone of the club's days and weeks. */
+  declare timeZone: CreationOptional<string>;
   /** Default flight conditions in SI units (e.g. `{ airTemperatureK, airPressurePa, relativeHumidity }`), or null. */
   declare defaultConditions: Record<string, number> | null;
   declare createdAt: CreationOptional<Date>;
@@ -27,6 +29,7 @@ export function initClub(sequelize: Sequelize): typeof Club {
       name: { type: DataTypes.STRING(120), allowNull: false },
       sportFocus: { type: DataTypes.STRING(40), allowNull: false, defaultValue: 'multi-sport', validate: { isIn: [[...SPORT_FOCUSES]] } },
       units: { type: DataTypes.ENUM(...UNITS), allowNull: false, defaultValue: 'metric' },
+      timeZone: { type: DataTypes.STRING(64), allowNull: false, defaultValue: 'UTC' },
       defaultConditions: { type: DataTypes.JSON, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,

@@ -11,6 +11,7 @@ import { Calibration, initCalibration } from './calibration';
 import { Clip, initClip } from './clip';
 import { Club, initClub } from './club';
 import { ClubSubscription, initClubSubscription } from './club-subscription';
+import { CoachNote, initCoachNote } from './coach-note';
 import { Fit, initFit } from './fit';
 import { Flight, initFlight } from './flight';
 import { FlightAction, initFlightAction } from './flight-action';
@@ -21,6 +22,8 @@ import { PasswordReset, initPasswordReset } from './password-reset';
 import { Session, initSession } from './session';
 import { TrackPoint, initTrackPoint } from './track-point';
 import { User, initUser } from './user';
+import { WorkloadEntry, initWorkloadEntry } from './workload-entry';
+import { WorkloadThreshold, initWorkloadThreshold } from './workload-threshold';
 
 initUser(sequelize);
 initClub(sequelize);
@@ -39,6 +42,9 @@ initPasswordReset(sequelize);
 initClubSubscription(sequelize);
 initBillingEvent(sequelize);
 initBillingInvoice(sequelize);
+initWorkloadEntry(sequelize);
+initWorkloadThreshold(sequelize);
+initCoachNote(sequelize);
 
 // Foreign keys are `<model>_id` columns; deleting a club removes its memberships and profiles (see migrations).
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
@@ -112,6 +118,15 @@ ClubSubscription.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
 Club.hasMany(BillingInvoice, { foreignKey: 'clubId', as: 'invoices' });
 BillingInvoice.belongsTo(Club, { foreignKey: 'clubId', as: 'club' });
 
+// Workload entries and thresholds go with their club (and an entry with its athlete); notes go with their
+// flight or session, and keep their text when the author's account is deleted (author_user_id SET NULL).
+Club.hasMany(WorkloadEntry, { foreignKey: 'clubId', as: 'workloadEntries' });
+AthleteProfile.hasMany(WorkloadEntry, { foreignKey: 'athleteProfileId', as: 'workloadEntries' });
+Club.hasMany(WorkloadThreshold, { foreignKey: 'clubId', as: 'workloadThresholds' });
+Flight.hasMany(CoachNote, { foreignKey: 'flightId', as: 'coachNotes' });
+Session.hasMany(CoachNote, { foreignKey: 'sessionId', as: 'coachNotes' });
+CoachNote.belongsTo(User, { foreignKey: 'authorUserId', as: 'author' });
+
 export {
   sequelize,
   AthleteProfile,
@@ -121,6 +136,7 @@ export {
   Clip,
   Club,
   ClubSubscription,
+  CoachNote,
   Fit,
   Flight,
   FlightAction,
@@ -131,4 +147,6 @@ export {
   Session,
   TrackPoint,
   User,
+  WorkloadEntry,
+  WorkloadThreshold,
 };

@@ -12,6 +12,7 @@ import type { ClubContext } from '../http/types';
 import { AthleteProfile, Club, Membership, User } from '../models';
 import { countClips, countProcessingClips } from './clips';
 import { countFlights } from './flights';
+import { getStaffOverview } from './overview';
 import { countPendingAthleteInvitations } from './invitations';
 import { assertAthleteSeatFree } from './seats';
 import { countSessions } from './sessions';
@@ -23,6 +24,7 @@ export function toClubProfile(club: Club): ClubProfile {
     name: club.name,
     sportFocus: club.sportFocus,
     units: club.units,
+    timeZone: club.timeZone,
     defaultConditions: club.defaultConditions ?? null,
   };
 }
@@ -44,6 +46,7 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
   if (body.name !== undefined) club.name = body.name;
   if (body.sportFocus !== undefined) club.sportFocus = body.sportFocus;
   if (body.units !== undefined) club.units = body.units;
+  if (body.timeZone !== undefined) club.timeZone = body.timeZone;
   await club.save();
   return toClubProfile(club);
 }
@@ -51,7 +54,10 @@ export async function updateClub(clubId: number, body: ClubUpdateBody): Promise<
 /** The Overview of a coach or admin, who see all of the club: the club and every count in one query. */
 async function staffOverview(clubCtx: ClubContext): Promise<ClubOverview> {
   const count = (table: string, extra = '') => `(SELECT COUNT(*) FROM ${table} WHERE club_id = c.id${extra})`;
-  const [row] = await sequelize.query<Record<string, number | string | null>>(
+  // The counts and the staff's start of the day are independent reads: run them side by side.
+  const [staff, [row]] = await Promise.all([
+    getStaffOverview(clubCtx.id),
+    sequelize.query<Record<string, number | string | null>>(
     `SELECT c.id, c.name, c.sport_focus AS sportFocus, c.units,
             ${count('memberships', " AND role = 'admin'")} AS admins, ${count('memberships', " AND role = 'coach'")} AS coaches,
             ${count('memberships', " AND role = 'athlete'")} AS athletes, ${count('athlete_profiles')} AS athleteProfiles,
@@ -59,7 +65,8 @@ async function staffOverview(clubCtx: ClubContext): Promise<ClubOverview> {
             ${count('flights')} AS flights, ${count('flights', " AND status = 'needs_attention'")} AS flightsNeedingAttention
        FROM clubs c WHERE c.id = ?`,
     { type: QueryTypes.SELECT, replacements: [clubCtx.id] },
-  );
+    ),
+  ]);
   if (!row) throw notFound('club');
   const n = (key: string) => Number(row[key] ?? 0);
   return {
@@ -77,6 +84,7 @@ async function staffOverview(clubCtx: ClubContext): Promise<ClubOverview> {
       flightsNeedingAttention: n('flightsNeedingAttention'),
       clipsProcessing: n('clipsProcessing'),
     },
+    staff,
   };
 }
 
@@ -116,6 +124,7 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
     club: { id: club.id, name: club.name, sportFocus: club.sportFocus, units: club.units },
     role: clubCtx.role,
     counts,
+    staff: null,
   };
 }
 

@@ -3,7 +3,9 @@
  */
 import { z } from 'zod';
 import { ROLES } from '../types/api';
+import { isValidTimeZone } from '../workload/calendar';
 import type { SubscriptionSummary } from './billing';
+import type { StaffOverview } from './overview';
 
 /** Sport focus of a club; the label is what the client shows. */
 export const SPORT_FOCUSES = [
@@ -56,9 +58,14 @@ export const clubUpdateSchema = z
       .optional(),
     sportFocus: sportFocusSchema.optional(),
     units: unitsSchema.optional(),
+    timeZone: z
+      .string({ error: 'Enter the time zone as a name such as Europe/Berlin or America/Chicago.' })
+      .trim()
+      .refine(isValidTimeZone, { error: 'That time zone is not known. Pick one from the list, such as Europe/Berlin, Asia/Tokyo or UTC.' })
+      .optional(),
   })
   .strict()
-  .refine((body) => Object.keys(body).length > 0, { error: 'Change at least one of name, sport focus or units.' });
+  .refine((body) => Object.keys(body).length > 0, { error: 'Change at least one of name, sport focus, units or time zone.' });
 export type ClubUpdateBody = z.infer<typeof clubUpdateSchema>;
 
 export const memberRoleSchema = z.object({ role: roleSchema }).strict();
@@ -121,6 +128,8 @@ export interface ClubProfile {
   name: string;
   sportFocus: SportFocus;
   units: Units;
+  /** IANA time zone that decides the club's days and weeks (workload counts). */
+  timeZone: string;
   /** Conditions used when a session gives none (SI units); null until the club sets them. */
   defaultConditions: Record<string, number> | null;
   /** The subscription state every member sees (banner, recording allowed); sent by `GET /clubs/:clubId`. */
@@ -154,4 +163,6 @@ export interface ClubOverview {
    * `athleteProfiles` counts profiles (an athlete sees only their own); each further resource adds its own key.
    */
   counts: { members: number; admins: number; coaches: number; athletes: number; athleteProfiles: number } & Record<string, number>;
+  /** The coach's start of the day; null for athletes (their landing page is My flights). */
+  staff: StaffOverview | null;
 }

@@ -13,10 +13,12 @@ export interface NavItem {
 const EVERYONE: readonly Role[] = ['admin', 'coach', 'athlete'];
 const STAFF: readonly Role[] = ['admin', 'coach'];
 const ADMIN: readonly Role[] = ['admin'];
+const ATHLETE: readonly Role[] = ['athlete'];
 
 /** The rail, top to bottom. */
 export const NAV_ITEMS: readonly NavItem[] = [
-  { label: 'Overview', icon: 'pi pi-compass', routeName: 'overview', roles: EVERYONE },
+  { label: 'Overview', icon: 'pi pi-compass', routeName: 'overview', roles: STAFF },
+  { label: 'My flights', icon: 'pi pi-send', routeName: 'my-flights', roles: ATHLETE },
   { label: 'Sessions', icon: 'pi pi-calendar', routeName: 'sessions', roles: EVERYONE },
   { label: 'Clips', icon: 'pi pi-video', routeName: 'clips', roles: EVERYONE },
   { label: 'Flights', icon: 'pi pi-chart-line', routeName: 'flights', roles: EVERYONE },

@@ -19,6 +19,7 @@ declare module 'vue-router' {
 
 const STAFF: readonly Role[] = ['admin', 'coach'];
 const ADMIN: readonly Role[] = ['admin'];
+const ATHLETE: readonly Role[] = ['athlete'];
 
 const routes: RouteRecordRaw[] = [
   {
@@ -53,6 +54,18 @@ const routes: RouteRecordRaw[] = [
     children: [
       // Overview is the first page after sign-in: it ships in the main bundle, every other page is loaded on demand.
       { path: '', name: 'overview', component: OverviewView, meta: { title: 'Overview' } },
+      {
+        path: 'my-flights',
+        name: 'my-flights',
+        component: () => import('@/views/MyFlightsView.vue'),
+        meta: { title: 'My flights', roles: ATHLETE },
+      },
+      {
+        path: 'squad/athletes/:athleteId(\\d+)',
+        name: 'athlete',
+        component: () => import('@/views/AthleteView.vue'),
+        meta: { title: 'Athlete', roles: STAFF },
+      },
       {
         path: 'squad',
         name: 'squad',
@@ -183,8 +196,11 @@ router.beforeEach(async (to): Promise<boolean | RouteLocationRaw> => {
   const linkedClub = Number(to.query.club);
   if (Number.isInteger(linkedClub) && linkedClub > 0) useClubStore().switchClub(linkedClub);
 
+  // An athlete's start is My flights; the staff's is the Overview.
+  const clubStore = useClubStore();
+  if (to.name === 'overview' && clubStore.role === 'athlete') return { name: 'my-flights' };
   const roles = to.meta.roles;
-  if (roles && !useClubStore().hasRole(roles)) return { name: 'overview' };
+  if (roles && !clubStore.hasRole(roles)) return { name: 'overview' };
   return true;
 });
 

@@ -6,8 +6,9 @@ import { filterRows, normalizeText } from '../../src/utils/text-filter';
 describe('navItemsFor', () => {
   const names = (role: Parameters<typeof navItemsFor>[0]) => navItemsFor(role).map((item) => item.routeName);
 
-  it('shows an athlete neither Squad nor Club when the role is athlete', () => {
-    expect(names('athlete')).toContain('overview');
+  it('shows an athlete My flights first and neither Overview, Squad nor Club when the role is athlete', () => {
+    expect(names('athlete')[0]).toBe('my-flights');
+    expect(names('athlete')).not.toContain('overview');
     expect(names('athlete')).not.toContain('squad');
     expect(names('athlete')).not.toContain('club');
   });
@@ -17,8 +18,8 @@ describe('navItemsFor', () => {
     expect(names('coach')).not.toContain('club');
   });
 
-  it('shows an admin every entry when the role is admin', () => {
-    expect(names('admin')).toEqual(NAV_ITEMS.map((item) => item.routeName));
+  it('shows an admin every entry but the athlete’s My flights when the role is admin', () => {
+    expect(names('admin')).toEqual(NAV_ITEMS.map((item) => item.routeName).filter((name) => name !== 'my-flights'));
   });
 
   it('shows nothing when there is no club in view', () => {

@@ -4,7 +4,7 @@ import type { Browser, Page } from 'playwright-core';
 import { DEMO_CLUB, DEMO_USERS, launchBrowser, railEntries, screenshot, signIn, signOut, withPage as withPageOf } from './support/browser';
 
 /** The rail entries of the shell itself; other entries may sit between them. */
-const SHELL_ENTRIES = ['overview', 'squad', 'club'];
+const SHELL_ENTRIES = ['overview', 'my-flights', 'squad', 'club'];
 
 describe('sign-in and the app shell', () => {
   let browser: Browser;
@@ -112,15 +112,21 @@ describe('sign-in and the app shell', () => {
   const expectations = {
     admin: ['overview', 'squad', 'club'],
     coach: ['overview', 'squad'],
-    athlete: ['overview'],
+    athlete: ['my-flights'],
   } as const;
 
   for (const role of ['admin', 'coach', 'athlete'] as const) {
     it(`shows the ${role} only the rail entries of the role when the demo ${role} signs in`, async () => {
       await withPage(async (page, errors) => {
         await signIn(page, DEMO_USERS[role].email);
-        await expect(page.getByTestId('overview-club-name').textContent()).resolves.toBe(DEMO_CLUB);
-        await expect(page.getByTestId('overview-role').getAttribute('data-role')).resolves.toBe(role);
+        if (role === 'athlete') {
+          // An athlete lands on My flights, not on the staff's Overview.
+          await page.getByTestId('my-flights').waitFor();
+          await expect(page.getByTestId('my-flights-club').getAttribute('data-role')).resolves.toBe(role);
+        } else {
+          await expect(page.getByTestId('overview-club-name').textContent()).resolves.toBe(DEMO_CLUB);
+          await expect(page.getByTestId('overview-role').getAttribute('data-role')).resolves.toBe(role);
+        }
         await expect(page.getByTestId('rail-user-name').textContent()).resolves.toBe(DEMO_USERS[role].name);
 
         const entries = await railEntries(page);
@@ -128,9 +134,9 @@ describe('sign-in and the app shell', () => {
 
         if (role === 'athlete') {
           await expect(page.getByTestId('my-profile-name').textContent()).resolves.toBe(DEMO_USERS.athlete.name);
-          // A typed address of a page the role may not open leads back to the Overview.
+          // A typed address of a page the role may not open leads back to the athlete's start, My flights.
           await page.goto('/club');
-          await page.waitForURL((url) => url.pathname === '/');
+          await page.waitForURL((url) => url.pathname === '/my-flights');
         }
         await screenshot(page, `${role}-overview`);
         expect(errors).toEqual([]);

@@ -14,6 +14,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import mariadb from 'mariadb';
 import type { TestProject } from 'vitest/node';
+import { dbSettings, e2eDbName } from './support/db';
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -27,12 +28,6 @@ const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const clientDir = process.env.E2E_CLIENT_DIR ? join(ROOT, process.env.E2E_CLIENT_DIR) : join(ROOT, 'dist');
 
 // Note: this project (tsconfig.e2e.json) cannot import tests/support, so the two database steps are repeated here.
-const dbSettings = {
-  host: process.env.DB_HOST ?? '127.0.0.1',
-  port: Number(process.env.DB_PORT ?? 3398),
-  user: process.env.DB_USER ?? 'arcwright',
-  password: process.env.DB_PASSWORD ?? 'arcwright-local',
-};
 
 /** Starts the private MariaDB when needed, with the same script as npm start. */
 function ensurePrivateDb(): void {
@@ -109,7 +104,7 @@ export default async function setup(project: TestProject): Promise<() => Promise
     throw new Error('dist/index.html is missing: build the client first with `npx vite build` (npm test does it).');
   }
   if (process.env.ARCWRIGHT_SKIP_DB !== '1' && process.env.DB_PRIVATE !== '0') ensurePrivateDb();
-  const dbName = process.env.E2E_DB_NAME ?? 'arcwright_e2e';
+  const dbName = e2eDbName();
   if (dbName === (process.env.DB_NAME ?? 'arcwright')) {
     throw new Error(`E2E_DB_NAME (${dbName}) equals DB_NAME: the browser tests drop their database. Give them their own name.`);
   }

@@ -79,8 +79,9 @@ describe('invitations and password reset by e-mail', () => {
       await page.getByTestId('join-submit').click();
       await page.getByTestId('rail').waitFor();
       await expect(page.getByTestId('rail-user-name').textContent()).resolves.toBe('Saskia Fenwright');
-      await expect(page.getByTestId('overview-role').getAttribute('data-role')).resolves.toBe('athlete');
-      await screenshot(page, 'joined-overview');
+      await page.getByTestId('my-flights').waitFor();
+      await expect(page.getByTestId('my-flights-club').getAttribute('data-role')).resolves.toBe('athlete');
+      await screenshot(page, 'joined-my-flights');
 
       await signOut(page);
       await signIn(page, invitee, firstPassword);

@@ -5,18 +5,22 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newToken } from '../../server/auth/tokens';
-import { Invitation } from '../../server/models';
+import { CoachNote, Invitation, WorkloadEntry } from '../../server/models';
 import { accountRouter } from '../../server/routes/account';
 import { athletesRouter } from '../../server/routes/athletes';
 import { clubsRouter } from '../../server/routes/clubs';
 import { invitationsRouter } from '../../server/routes/invitations';
 import { membersRouter } from '../../server/routes/members';
+import { myFlightsRouter } from '../../server/routes/my-flights';
+import { notesRouter } from '../../server/routes/notes';
+import { workloadRouter } from '../../server/routes/workload';
 import { addMember, createClubFixture, testApp, uniqueEmail, type ApiClient, type ClubFixture } from '../support/app';
 import { useTestMailbox, type TestMailbox } from '../support/mail';
+import { recordFlights, recordSession } from '../support/records';
 import { routesOf } from '../support/routes';
 
 type Who = 'admin' | 'coach' | 'athlete' | 'outsider' | 'anonymous';
-type Method = 'get' | 'post' | 'patch' | 'delete';
+type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 
 interface Case {
   method: Method;
@@ -30,7 +34,19 @@ interface Case {
 
 const club = (f: ClubFixture) => `/api/v1/clubs/${f.clubId}`;
 /** Records the matrix acts on, made for it in beforeAll. */
-const targets = { removableMemberId: 0, resendInvitationId: 0, revokeInvitationId: 0 };
+const targets = {
+  removableMemberId: 0,
+  resendInvitationId: 0,
+  revokeInvitationId: 0,
+  /** A teammate's flight and a session holding only it: an athlete gets 404 for both. */
+  teammateFlightId: 0,
+  teammateSessionId: 0,
+  /** A note by the club's coach. */
+  noteId: 0,
+  /** Fresh records for each call of a delete row (every caller deletes one of their own). */
+  notePool: [] as number[],
+  entryPool: [] as number[],
+};
 
 const CASES: Case[] = [
   {
@@ -130,6 +146,89 @@ const CASES: Case[] = [
     body: () => ({ position: 'place kicker' }),
     expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
   },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/athletes/:athleteId/workload',
+    path: (f) => `${club(f)}/athletes/${f.otherAthleteProfileId}/workload`,
+    expect: { admin: 200, coach: 200, athlete: 404, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/workload/cautions',
+    path: (f) => `${club(f)}/workload/cautions`,
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/workload-entries',
+    path: (f) => `${club(f)}/workload-entries`,
+    body: (f) => ({ athleteId: f.otherAthleteProfileId, action: 'punt', count: 3 }),
+    expect: { admin: 201, coach: 201, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'delete',
+    route: '/clubs/:clubId/workload-entries/:entryId',
+    path: (f) => `${club(f)}/workload-entries/${targets.entryPool.shift()}`,
+    expect: { admin: 204, coach: 204, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/workload-thresholds',
+    path: (f) => `${club(f)}/workload-thresholds`,
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'put',
+    route: '/clubs/:clubId/workload-thresholds',
+    path: (f) => `${club(f)}/workload-thresholds`,
+    body: () => ({ thresholds: [{ action: 'punt', ageBand: '15-16', dailyMax: null, weeklyMax: 40 }] }),
+    expect: { admin: 200, coach: 403, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/flights/:flightId/notes',
+    path: (f) => `${club(f)}/flights/${targets.teammateFlightId}/notes`,
+    expect: { admin: 200, coach: 200, athlete: 404, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/flights/:flightId/notes',
+    path: (f) => `${club(f)}/flights/${targets.teammateFlightId}/notes`,
+    body: () => ({ body: 'Matrix note', visibility: 'shared' }),
+    expect: { admin: 201, coach: 201, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/sessions/:sessionId/notes',
+    path: (f) => `${club(f)}/sessions/${targets.teammateSessionId}/notes`,
+    expect: { admin: 200, coach: 200, athlete: 404, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/sessions/:sessionId/notes',
+    path: (f) => `${club(f)}/sessions/${targets.teammateSessionId}/notes`,
+    body: () => ({ body: 'Matrix session note' }),
+    expect: { admin: 201, coach: 201, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'patch',
+    route: '/clubs/:clubId/notes/:noteId',
+    path: (f) => `${club(f)}/notes/${targets.noteId}`,
+    body: () => ({ body: 'Edited in the matrix' }),
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'delete',
+    route: '/clubs/:clubId/notes/:noteId',
+    path: (f) => `${club(f)}/notes/${targets.notePool.shift()}`,
+    expect: { admin: 204, coach: 204, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/my-flights',
+    path: (f) => `${club(f)}/my-flights`,
+    expect: { admin: 403, coach: 403, athlete: 200, outsider: 404, anonymous: 401 },
+  },
 ];
 
 describe('authorization matrix', () => {
@@ -143,13 +242,23 @@ describe('authorization matrix', () => {
       Invitation.create({ clubId: f.clubId, email, role: 'coach', athleteProfileId: null, invitedByUserId: null, tokenHash: newToken().hash, expiresAt: new Date(Date.now() + 86_400_000), sentAt: new Date() });
     targets.resendInvitationId = (await invitation(uniqueEmail('resend'))).id;
     targets.revokeInvitationId = (await invitation(uniqueEmail('revoke'))).id;
+    const session = await recordSession(f.clubId, '2026-02-02');
+    [targets.teammateFlightId] = await recordFlights(f.clubId, session.clipId, [{ athleteId: f.otherAthleteProfileId }]);
+    targets.teammateSessionId = session.sessionId;
+    const note = () => CoachNote.create({ clubId: f.clubId, flightId: targets.teammateFlightId, sessionId: null, authorUserId: f.members.coach.userId, body: 'Matrix', visibility: 'staff' });
+    targets.noteId = (await note()).id;
+    const entry = () => WorkloadEntry.create({ clubId: f.clubId, athleteProfileId: f.otherAthleteProfileId, action: 'punt', day: '2026-02-02', count: 2, note: null, createdByUserId: null });
+    for (let i = 0; i < 5; i++) {
+      targets.notePool.push((await note()).id);
+      targets.entryPool.push((await entry()).id);
+    }
   });
   afterAll(async () => {
     await mail.close();
   });
 
-  it('covers every route of the account, club, member, athlete and invitation routers when a route is added', () => {
-    const declared = [accountRouter, clubsRouter, membersRouter, athletesRouter, invitationsRouter].flatMap(routesOf).sort();
+  it('covers every route of the account, club, member, athlete, invitation, workload, notes and My flights routers when a route is added', () => {
+    const declared = [accountRouter, clubsRouter, membersRouter, athletesRouter, invitationsRouter, workloadRouter, notesRouter, myFlightsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(CASES.map((c) => `${c.method} ${c.route}`))].sort();
     expect(tested).toEqual(declared);
   });

@@ -16,6 +16,7 @@ describe('clubs: profile and overview', () => {
       name: 'Fixture Club',
       sportFocus: 'multi-sport',
       units: 'metric',
+      timeZone: 'UTC',
       defaultConditions: null,
       subscription: { status: 'trialing', recordingAllowed: true, reason: null, trialEndsAt: expect.any(String) },
     });

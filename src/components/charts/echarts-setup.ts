@@ -4,7 +4,7 @@
  */
 import { use } from 'echarts/core';
 import { CanvasRenderer } from 'echarts/renderers';
-import { HeatmapChart, LineChart, ScatterChart } from 'echarts/charts';
+import { BarChart, HeatmapChart, LineChart, ScatterChart } from 'echarts/charts';
 import {
   DataZoomComponent,
   GridComponent,
@@ -20,6 +20,7 @@ import VChart from 'vue-echarts';
 use([
   CanvasRenderer,
   LineChart,
+  BarChart,
   ScatterChart,
   HeatmapChart,
   GridComponent,

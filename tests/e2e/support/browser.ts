@@ -79,6 +79,17 @@ export async function newContext(browser: Browser): Promise<BrowserContext> {
   return context;
 }
 
+/** A page of a fresh context whose charts draw without animation (for screenshots of finished charts), with its errors collected. */
+export async function openChartPage(browser: Browser): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
+  const context = await newContext(browser);
+  // src/components/charts/echarts-setup.ts reads this flag.
+  await context.addInitScript(() => {
+    (window as unknown as { __ARCWRIGHT_NO_ANIMATION__: boolean }).__ARCWRIGHT_NO_ANIMATION__ = true;
+  });
+  const page = await context.newPage();
+  return { context, page, errors: collectPageErrors(page) };
+}
+
 /** Collects uncaught page errors, so a test can assert the app threw none. */
 export function collectPageErrors(page: Page): string[] {
   const errors: string[] = [];
