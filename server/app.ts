@@ -18,6 +18,7 @@ import { sessionMiddleware } from './http/session';
 import './http/types';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
+import { ballsRouter } from './routes/balls';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
 import { clipsRouter } from './routes/clips';
 import { clubsRouter } from './routes/clubs';
@@ -109,6 +110,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
+  api.use(ballsRouter);
   api.use(billingRouter);
   api.use(invitationsRouter);
   api.use(invitationLinksRouter);

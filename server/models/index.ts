@@ -9,6 +9,7 @@ import { BillingInvoice, initBillingInvoice } from './billing-invoice';
 import { Calibration, initCalibration } from './calibration';
 import { Clip, initClip } from './clip';
 import { Club, initClub } from './club';
+import { ClubBall, initClubBall } from './club-ball';
 import { ClubSubscription, initClubSubscription } from './club-subscription';
 import { Fit, initFit } from './fit';
 import { Flight, initFlight } from './flight';
@@ -29,6 +30,7 @@ initSession(sequelize);
 initClip(sequelize);
 initCalibration(sequelize);
 initFlightAction(sequelize);
+initClubBall(sequelize);
 initFlight(sequelize);
 initTrackPoint(sequelize);
 initFit(sequelize);
@@ -66,6 +68,7 @@ TrackPoint.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 Flight.hasMany(Fit, { foreignKey: 'flightId', as: 'fits' });
 Fit.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 Club.hasMany(FlightAction, { foreignKey: 'clubId', as: 'flightActions' });
+Club.hasMany(ClubBall, { foreignKey: 'clubId', as: 'balls' });
 Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
 
 // Deleting a club removes its invitations; a deleted profile or inviter leaves the invitation with a null link.
@@ -91,6 +94,7 @@ export {
   Calibration,
   Clip,
   Club,
+  ClubBall,
   ClubSubscription,
   Fit,
   Flight,

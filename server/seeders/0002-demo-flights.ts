@@ -151,7 +151,7 @@ async function insertSession(
 
     if (!BALLS[flight.ballId]) throw new Error(`Demo flight "${flight.key}" names the ball "${flight.ballId}", which is not in the catalogue.`);
     const input = calibrationInputSchema.parse(r.calibration);
-    await Calibration.create({ clubId, clipId: clip.id, input, ...calibrationValues(input), supersededAt: null }, { transaction });
+    await Calibration.create({ clubId, clipId: clip.id, input, ...(await calibrationValues(clubId, input)), supersededAt: null }, { transaction });
 
     const row = await Flight.create(
       {

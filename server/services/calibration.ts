@@ -3,7 +3,6 @@
  * that used it), answers the current one, and enqueues refits of the clip's flights on a change.
  */
 import { Op, type Transaction } from 'sequelize';
-import { BALLS } from '../../shared/physics';
 import { ballCheck, computeCalibration } from '../../shared/calibration/geometry';
 import {
   type BallCheck,
@@ -16,6 +15,7 @@ import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { Calibration, type Clip } from '../models';
+import { resolveFlightBall } from './balls';
 import { enqueueRefits } from './refits';
 import { findVisibleClip } from './visibility';
 
@@ -53,19 +53,20 @@ export function frameOf(cal: Calibration): CalibrationFrame {
 
 /**
  * What is stored beside a calibration's input: metres per pixel, the level angle and the ball's size check.
- * @throws ApiError VALIDATION_FAILED when the size check names a ball that is not in the catalogue
+ * @param clubId the club whose own balls count beside the catalogue
+ * @throws ApiError VALIDATION_FAILED when the size check names a ball that is in neither
  */
-export function calibrationValues(input: CalibrationInput): { metresPerPixel: number; levelAngleDeg: number; ballCheck: BallCheck | null } {
+export async function calibrationValues(clubId: number, input: CalibrationInput): Promise<{ metresPerPixel: number; levelAngleDeg: number; ballCheck: BallCheck | null }> {
   const frame = computeCalibration(input);
   let check: BallCheck | null = null;
   if (input.ball) {
-    const spec = BALLS[input.ball.ballId];
-    if (!spec) {
-      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue.`, {
-        'ball.ballId': 'Pick a ball from the catalogue.',
+    const ball = await resolveFlightBall(clubId, input.ball.ballId);
+    if (!ball) {
+      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue or the club's balls.`, {
+        'ball.ballId': 'Pick a ball from the catalogue or the club’s balls.',
       });
     }
-    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, spec.diameterM.nominal);
+    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, ball.diameterM);
   }
   return { metresPerPixel: frame.metresPerPixel, levelAngleDeg: frame.levelAngleDeg, ballCheck: check };
 }
@@ -102,7 +103,7 @@ export async function getCalibration(club: ClubContext, clipId: number): Promise
 export async function setCalibration(club: ClubContext, clipId: number, input: CalibrationInput): Promise<CalibrationDto & { refitJobIds: number[] }> {
   const clip = await findVisibleClip(club, clipId);
   checkInside(clip, input);
-  const values = calibrationValues(input);
+  const values = await calibrationValues(club.id, input);
   const { cal, jobIds } = await sequelize.transaction(async (transaction) => {
     await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });
     const created = await Calibration.create(

@@ -19,6 +19,7 @@ import { sequelize } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
+import { checkFlightBall } from './balls';
 import { currentCalibration, toCalibrationDto } from './calibration';
 import { latestFits, toFitSummary } from './fits';
 import { latestJobs, toJobSummary } from './jobs';
@@ -242,6 +243,7 @@ export async function createFlight(club: ClubContext, clipId: number, input: Fli
   const flight = await sequelize.transaction(async (transaction) => {
     await checkAthlete(club.id, input.athleteId, transaction);
     await checkAction(club.id, input.action, transaction);
+    await checkFlightBall(club.id, input.ballId, transaction);
     const frameStart = input.frameStart ?? 0;
     const frameEnd = input.frameEnd ?? lastFrame(clip);
     checkRange(clip, frameStart, frameEnd);
@@ -277,6 +279,7 @@ export async function patchFlight(club: ClubContext, flightId: number, patch: Fl
       flight.action = patch.action;
     }
     const ballChanged = patch.ballId !== undefined && patch.ballId !== flight.ballId;
+    if (ballChanged) await checkFlightBall(club.id, patch.ballId!, transaction);
     if (patch.ballId !== undefined) flight.ballId = patch.ballId;
     if (patch.notes !== undefined) flight.notes = patch.notes ?? null;
     if (patch.frameStart !== undefined || patch.frameEnd !== undefined) {

@@ -5,8 +5,9 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newToken } from '../../server/auth/tokens';
-import { Invitation } from '../../server/models';
+import { ClubBall, Invitation } from '../../server/models';
 import { athletesRouter } from '../../server/routes/athletes';
+import { ballsRouter } from '../../server/routes/balls';
 import { clubsRouter } from '../../server/routes/clubs';
 import { invitationsRouter } from '../../server/routes/invitations';
 import { membersRouter } from '../../server/routes/members';
@@ -29,7 +30,8 @@ interface Case {
 
 const club = (f: ClubFixture) => `/api/v1/clubs/${f.clubId}`;
 /** Records the matrix acts on, made for it in beforeAll. */
-const targets = { removableMemberId: 0, resendInvitationId: 0, revokeInvitationId: 0 };
+const targets = { removableMemberId: 0, resendInvitationId: 0, revokeInvitationId: 0, ballId: 0, deletableBallIds: [] as number[] };
+let ballSeq = 0;
 
 const CASES: Case[] = [
   {
@@ -121,6 +123,33 @@ const CASES: Case[] = [
     body: () => ({ position: 'place kicker' }),
     expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
   },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/balls',
+    path: (f) => `${club(f)}/balls`,
+    expect: { admin: 200, coach: 200, athlete: 200, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/balls',
+    path: (f) => `${club(f)}/balls`,
+    body: () => ({ name: `Matrix ball ${++ballSeq}`, massKg: 0.3, diameterM: 0.4 }),
+    expect: { admin: 201, coach: 201, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'patch',
+    route: '/clubs/:clubId/balls/:ballId',
+    path: (f) => `${club(f)}/balls/${targets.ballId}`,
+    body: () => ({ massKg: 0.31 }),
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'delete',
+    route: '/clubs/:clubId/balls/:ballId',
+    // One unused ball per caller, so that the admin's delete leaves one for the coach.
+    path: (f) => `${club(f)}/balls/${targets.deletableBallIds.shift() ?? 0}`,
+    expect: { admin: 204, coach: 204, athlete: 403, outsider: 404, anonymous: 401 },
+  },
 ];
 
 describe('authorization matrix', () => {
@@ -134,13 +163,16 @@ describe('authorization matrix', () => {
       Invitation.create({ clubId: f.clubId, email, role: 'coach', athleteProfileId: null, invitedByUserId: null, tokenHash: newToken().hash, expiresAt: new Date(Date.now() + 86_400_000), sentAt: new Date() });
     targets.resendInvitationId = (await invitation(uniqueEmail('resend'))).id;
     targets.revokeInvitationId = (await invitation(uniqueEmail('revoke'))).id;
+    const ball = (name: string) => ClubBall.create({ clubId: f.clubId, name, massKg: 0.3, diameterM: 0.4, cdMin: null, cdMax: null });
+    targets.ballId = (await ball('Matrix edited ball')).id;
+    for (let i = 0; i < 5; i++) targets.deletableBallIds.push((await ball(`Matrix spare ball ${i}`)).id);
   });
   afterAll(async () => {
     await mail.close();
   });
 
-  it('covers every route of the club, member, athlete and invitation routers when a route is added', () => {
-    const declared = [clubsRouter, membersRouter, athletesRouter, invitationsRouter].flatMap(routesOf).sort();
+  it('covers every route of the club, member, athlete, invitation and ball routers when a route is added', () => {
+    const declared = [clubsRouter, membersRouter, athletesRouter, invitationsRouter, ballsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(CASES.map((c) => `${c.method} ${c.route}`))].sort();
     expect(tested).toEqual(declared);
   });
