@@ -3,7 +3,7 @@
  * that used it), answers the current one, and enqueues refits of the clip's flights on a change.
  */
 import { Op, type Transaction } from 'sequelize';
-import { ballCheck, computeCalibration } from '../../shared/calibration/geometry';
+import { ballCheck, computeCalibration, OFF_PICTURE_LIMIT } from '../../shared/calibration/geometry';
 import {
   type BallCheck,
   type Calibration as CalibrationDto,
@@ -71,12 +71,16 @@ export async function calibrationValues(clubId: number, input: CalibrationInput)
   return { metresPerPixel: frame.metresPerPixel, levelAngleDeg: frame.levelAngleDeg, ballCheck: check };
 }
 
-/** Points must lie in the frame (a calibration outside the picture is a misclick). */
-function checkInside(clip: Clip, input: CalibrationInput): void {
+/**
+ * Points may lie off the picture (the ground below a tight framing, the far end of a known distance), but
+ * not farther than {@link OFF_PICTURE_LIMIT} picture widths or heights from it: that far no one can place them.
+ */
+function checkNear(clip: Clip, input: CalibrationInput): void {
   const fields: Record<string, string> = {};
+  const w = clip.width * OFF_PICTURE_LIMIT, h = clip.height * OFF_PICTURE_LIMIT;
   const check = (path: string, p: PixelPoint) => {
-    if (p.xPx < 0 || p.yPx < 0 || p.xPx > clip.width || p.yPx > clip.height) {
-      fields[path] = `This point (${Math.round(p.xPx)}, ${Math.round(p.yPx)}) lies outside the ${clip.width}×${clip.height} frame: place it on the picture.`;
+    if (p.xPx < -w || p.yPx < -h || p.xPx > clip.width + w || p.yPx > clip.height + h) {
+      fields[path] = `This point (${Math.round(p.xPx)}, ${Math.round(p.yPx)}) lies more than a picture's width or height outside the ${clip.width}×${clip.height} frame, too far to place with any accuracy: mark a nearer point, or a level line on the picture and give its height above the ground.`;
     }
   };
   check('scale.a', input.scale.a);
@@ -102,7 +106,7 @@ export async function getCalibration(club: ClubContext, clipId: number): Promise
  */
 export async function setCalibration(club: ClubContext, clipId: number, input: CalibrationInput): Promise<CalibrationDto & { refitJobIds: number[] }> {
   const clip = await findVisibleClip(club, clipId);
-  checkInside(clip, input);
+  checkNear(clip, input);
   const values = await calibrationValues(club.id, input);
   const { cal, jobIds } = await sequelize.transaction(async (transaction) => {
     await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });

@@ -3,7 +3,7 @@
  * tests: the clip's current calibration turns the traced pixels into metres (t = frame / capture rate),
  * the session's conditions give the air and the wind along the flight, and the flight names the ball.
  */
-import { airFromConditions, type Air, type BallProps, type Conditions as AirConditions } from '../../shared/physics';
+import { airFromConditions, type Air, type BallProps, type Conditions as AirConditions, type ReleaseSpec } from '../../shared/physics';
 import { pixelToMetres } from '../../shared/calibration/geometry';
 import type { Conditions } from '../../shared/schemas/session';
 import { JobFailure } from '../jobs/types';
@@ -37,6 +37,13 @@ export function windAlongFlight(conditions: Conditions): number {
   return conditions.windSpeedMps * Math.cos((conditions.windDirectionDeg * Math.PI) / 180);
 }
 
+/** The flight's release as the engine reads it: a marked frame wins over a height; none: the first traced point. */
+function releaseOf(flight: Flight, clip: Clip): { release?: ReleaseSpec } {
+  if (flight.releaseFrame !== null && flight.releaseFrame !== undefined) return { release: { time: flight.releaseFrame / clip.captureFps } };
+  if (flight.releaseHeightM !== null && flight.releaseHeightM !== undefined) return { release: { height: flight.releaseHeightM } };
+  return {};
+}
+
 export interface FitInput {
   flight: Flight;
   clip: Clip;
@@ -45,8 +52,11 @@ export interface FitInput {
   points: TrackPoint[];
   /** The points in seconds and metres (t from the capture rate, x along the flight, y up). */
   track: { t: number[]; x: number[]; y: number[] };
-  /** Ball, air and wind for `fitFlight` (no air: the engine assumes standard air); the model is the caller's choice. */
-  options: { ball: BallProps; air?: Air; windSpeed: number };
+  /**
+   * Ball, air and wind for `fitFlight` (no air: the engine assumes standard air), the release (a marked frame
+   * as a time from the capture rate, or a height) and the capture rate; the model is the caller's choice.
+   */
+  options: { ball: BallProps; air?: Air; windSpeed: number; release?: ReleaseSpec; frameRate: number };
 }
 
 /**
@@ -82,6 +92,12 @@ export async function loadFitInput(flightId: number): Promise<FitInput> {
     calibration,
     points,
     track,
-    options: { ball, ...(air ? { air: airFromConditions(air) } : {}), windSpeed: windAlongFlight(conditions) },
+    options: {
+      ball,
+      ...(air ? { air: airFromConditions(air) } : {}),
+      windSpeed: windAlongFlight(conditions),
+      ...releaseOf(flight, clip),
+      frameRate: clip.captureFps,
+    },
   };
 }

@@ -157,6 +157,8 @@ export async function toFlightDtos(flights: Flight[]): Promise<FlightDto[]> {
       ballId: f.ballId,
       frameStart: f.frameStart,
       frameEnd: f.frameEnd,
+      releaseFrame: f.releaseFrame ?? null,
+      releaseHeightM: f.releaseHeightM ?? null,
       status: f.status,
       attentionReason: f.attentionReason ?? null,
       notes: f.notes ?? null,
@@ -238,6 +240,29 @@ function checkRange(clip: Clip, frameStart: number, frameEnd: number): void {
   }
 }
 
+/**
+ * A release frame must lie inside the flight's frames and not after its last traced point (the fit
+ * traces the flight back to the release, never forward).
+ * @throws ApiError VALIDATION_FAILED naming `releaseFrame`
+ */
+async function checkReleaseFrame(flightId: number | null, releaseFrame: number, frameStart: number, frameEnd: number, transaction?: Transaction): Promise<void> {
+  if (releaseFrame < frameStart || releaseFrame > frameEnd) {
+    throw new ApiError('VALIDATION_FAILED', `The release frame ${releaseFrame} lies outside the flight's frames ${frameStart}–${frameEnd}: mark the frame where the ball left the foot or hand.`, {
+      releaseFrame: `Between ${frameStart} and ${frameEnd}.`,
+    });
+  }
+  if (flightId === null) return;
+  const [row] = await sequelize.query<{ last: number | null }>('SELECT MAX(frame) AS last FROM track_points WHERE flight_id = :id', {
+    type: QueryTypes.SELECT, replacements: { id: flightId }, transaction,
+  });
+  const last = row?.last === null || row?.last === undefined ? null : Number(row.last);
+  if (last !== null && releaseFrame > last) {
+    throw new ApiError('VALIDATION_FAILED', `The release frame ${releaseFrame} comes after the last traced point (frame ${last}): the release is where the ball left the foot or hand, before the traced flight.`, {
+      releaseFrame: `At most ${last}, the last traced frame.`,
+    });
+  }
+}
+
 export async function createFlight(club: ClubContext, clipId: number, input: FlightInput): Promise<FlightDto> {
   const clip = await findVisibleClip(club, clipId);
   const flight = await sequelize.transaction(async (transaction) => {
@@ -247,6 +272,7 @@ export async function createFlight(club: ClubContext, clipId: number, input: Fli
     const frameStart = input.frameStart ?? 0;
     const frameEnd = input.frameEnd ?? lastFrame(clip);
     checkRange(clip, frameStart, frameEnd);
+    if (input.releaseFrame !== undefined && input.releaseFrame !== null) await checkReleaseFrame(null, input.releaseFrame, frameStart, frameEnd, transaction);
     return Flight.create(
       {
         clubId: club.id,
@@ -256,6 +282,8 @@ export async function createFlight(club: ClubContext, clipId: number, input: Fli
         ballId: input.ballId,
         frameStart,
         frameEnd,
+        releaseFrame: input.releaseFrame ?? null,
+        releaseHeightM: input.releaseHeightM ?? null,
         attentionReason: null,
         notes: input.notes ?? null,
       },
@@ -300,6 +328,19 @@ export async function patchFlight(club: ClubContext, flightId: number, patch: Fl
       flight.frameStart = frameStart;
       flight.frameEnd = frameEnd;
     }
+    const releaseFrame = patch.releaseFrame !== undefined ? patch.releaseFrame : flight.releaseFrame ?? null;
+    const releaseHeightM = patch.releaseHeightM !== undefined ? patch.releaseHeightM : flight.releaseHeightM ?? null;
+    const releaseChanged = releaseFrame !== (flight.releaseFrame ?? null) || releaseHeightM !== (flight.releaseHeightM ?? null);
+    if (releaseChanged) {
+      if (releaseFrame !== null && releaseHeightM !== null) {
+        throw new ApiError('VALIDATION_FAILED', 'Give either the release frame or the release height, not both: clear the one you no longer want.', {
+          releaseHeightM: 'Clear the release frame first, or leave this empty.',
+        });
+      }
+      if (releaseFrame !== null) await checkReleaseFrame(flight.id, releaseFrame, flight.frameStart, flight.frameEnd, transaction);
+      flight.releaseFrame = releaseFrame;
+      flight.releaseHeightM = releaseHeightM;
+    }
     if (patch.status !== undefined && patch.status !== flight.status) {
       if (patch.status === 'reviewed' && !REVIEW_FROM.includes(flight.status)) {
         throw new ApiError('CONFLICT', `Only a fitted flight can be marked reviewed; this one is ${flight.status.replace('_', ' ')}. Fit it first.`);
@@ -310,7 +351,7 @@ export async function patchFlight(club: ClubContext, flightId: number, patch: Fl
       flight.status = patch.status;
     }
     await flight.save({ transaction });
-    if (ballChanged) await enqueueRefits(club.id, { flightId: flight.id, onlyFitted: true }, transaction);
+    if (ballChanged || releaseChanged) await enqueueRefits(club.id, { flightId: flight.id, onlyFitted: true }, transaction);
   });
   return getFlight(club, flightId);
 }

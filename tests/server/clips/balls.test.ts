@@ -38,6 +38,19 @@ afterAll(async () => {
 
 const PLAY_BALL = { name: 'Play ball 40 cm', massKg: 0.35, diameterM: 0.4, cdMin: 0.35, cdMax: 0.55 };
 
+/** A flight of `ballId` with an exact generated track of a play ball (C_d 0.45) imported in metres, and a drag fit queued. */
+async function importedFlight(ballId: string, launch = { speed: 12, angleDeg: 40, height: 1.5 }, cd = 0.45): Promise<number> {
+  const created = await fx.coach.post(clubPath(fx, `/clips/${clipId}/flights`), { athleteId: fx.otherAthleteProfileId, action: 'long_throw', ballId });
+  const flightId = created.body.data.id as number;
+  const ball = ballId === 'football-5' ? 'football-5' : PLAY_BALL;
+  const track = generateTrack({ launch, ball, air: standardAir(), aero: { model: 'drag', cd }, fps: 120, endTime: 1 });
+  const csv = `# metres\nt,x,y\n${track.t.map((t, i) => `${t},${track.x[i]},${track.y[i]}`).join('\n')}\n`;
+  const imported = await fx.coach.post(clubPath(fx, `/flights/${flightId}/track/import`), { csv });
+  if (imported.status !== 200) throw new Error(JSON.stringify(imported.body));
+  await fx.coach.post(clubPath(fx, `/flights/${flightId}/fit`), { model: 'drag' });
+  return flightId;
+}
+
 describe('club balls', () => {
   it('adds a club ball that coaches and athletes then read beside the catalogue', async () => {
     const res = await fx.coach.post(clubPath(fx, '/balls'), PLAY_BALL);
@@ -127,6 +140,29 @@ describe('club balls', () => {
     expect((refit!.result as { setup: { ball: { massKg: number } } }).setup.ball.massKg).toBe(0.4);
     // Same track, heavier ball: the same deceleration needs a C_d larger in proportion to the mass (F = ½ρC_dAV², a = F/m).
     expect((refit!.result as { cd: number }).cd).toBeCloseTo(result.cd * (0.4 / 0.35), 2);
+  });
+
+  it('puts a flight in needs attention, with the reason, when its C_d lies outside the ball’s range', async () => {
+    const narrow = await fx.coach.post(clubPath(fx, '/balls'), { ...PLAY_BALL, name: 'Narrow range ball', cdMin: 0.1, cdMax: 0.15 });
+    const flightId = await importedFlight(narrow.body.data.ballId);
+    await testWorker().drain();
+    const flight = (await fx.coach.get(clubPath(fx, `/flights/${flightId}`))).body.data;
+    expect(flight.status).toBe('needs_attention');
+    expect(flight.attentionReason).toMatch(/lies outside the typical 0.1–0.15 for Narrow range ball/);
+    expect(flight.latestFit.warnings.map((w: { code: string }) => w.code)).toContain('CD_OUTSIDE_RANGE');
+  });
+
+  it('puts a flight in needs attention when the calibration’s ball-size cross-check failed', async () => {
+    // The ball drawn at twice its size: the scale or the ball picked is off.
+    const bad = await fx.coach.put(clubPath(fx, `/clips/${clipId}/calibration`), { ...calibration, ball: { ballId: 'football-5', diameterPx: 2 * (0.69 / Math.PI) * PX_PER_M } });
+    expect(bad.body.data.ballCheck.ok).toBe(false);
+    const flightId = await importedFlight('football-5', { speed: 14, angleDeg: 35, height: 0.2 }, 0.25);
+    await testWorker().drain();
+    const flight = (await fx.coach.get(clubPath(fx, `/flights/${flightId}`))).body.data;
+    expect(flight.status).toBe('needs_attention');
+    expect(flight.attentionReason).toMatch(/^The ball measures 200 % of its real diameter in the calibration/);
+    await fx.coach.put(clubPath(fx, `/clips/${clipId}/calibration`), calibration);
+    await testWorker().drain();
   });
 
   it('refuses to delete a ball flights use, and deletes an unused one', async () => {
