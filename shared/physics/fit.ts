@@ -164,6 +164,11 @@ export interface FitResult {
   };
   /** Reynolds numbers over the fitted flight from the release to the ground (slowest and fastest air-relative speed). */
   reynoldsRange: { min: number; max: number } | null;
+  /**
+   * Point-to-point correlation φ of the track's errors (AR(1), 0 = independent) that the stated errors
+   * allow for, and the number of independent points the track is worth, n(1 − φ)/(1 + φ).
+   */
+  noiseCorrelation: { phi: number; effectivePoints: number };
   scaleCheck: ScaleCheck | null;
   /** BIC of both models (lower is better); `drag` is null when the lift term was decisive (Wald z² − ln m > 27) and the drag fit was skipped. */
   modelSelection: { criterion: 'BIC'; drag: number | null; dragLift: number; chosen: FlightModel } | null;
@@ -387,11 +392,17 @@ function runNoise(run: Run, n: number): { d: Float64Array; noise: number } {
 }
 
 /**
- * Covariance s²(JᵀWJ)⁻¹ with s² = Σ wᵢrᵢ² / (Σ wᵢ − p) over the traced points' residuals (the
- * weighted-least-squares estimate at the IRLS fixed point; Holland & Welsch 1977). Null when
- * JᵀWJ is singular (a parameter the track cannot determine).
+ * Covariance of the fitted parameters. With independent noise it is s²(JᵀWJ)⁻¹, s² = Σ wᵢrᵢ² / (Σ wᵢ − p)
+ * (the weighted-least-squares estimate at the IRLS fixed point; Holland & Welsch 1977). A follower's
+ * errors are correlated from frame to frame, which makes that too small: the errors of each coordinate
+ * are taken as an AR(1) series with correlation φ from point to point ({@link residualCorrelation}), and
+ * the covariance is the sandwich s²·A(JᵀΣ_φJ + P)A, A = (JᵀWJ + P)⁻¹, P the prior's precision in the
+ * units of the data (generalised least squares theory, Seber & Wild, *Nonlinear Regression* (1989)
+ * §2.1 and §6.2). With φ = 0 it is the plain covariance. Null when JᵀWJ is singular (a parameter the
+ * track cannot determine). The model choice and the prior decide on the plain covariance (`correlated`
+ * false: cheaper, and they compare fits of the same track); the reported errors use the correlated one.
  */
-function covarianceOf(run: Run, n: number): { cov: Float64Array | null; s2: number } {
+function covarianceOf(run: Run, n: number, correlated = false): { cov: Float64Array | null; s2: number; phi: number } {
   const np = run.names.length;
   let num = 0, wsum = 0;
   for (let k = 0; k < n; k++) {
@@ -400,20 +411,173 @@ function covarianceOf(run: Run, n: number): { cov: Float64Array | null; s2: numb
     wsum += 2 * w;
   }
   const dof = wsum - np;
-  const s2 = Math.max(dof > 0 ? num / dof : num, NOISE_FLOOR_M ** 2);
+  let s2 = Math.max(dof > 0 ? num / dof : num, NOISE_FLOOR_M ** 2);
+  const iCd = run.names.indexOf('cd');
+  // The prior row entered the fit scaled by the noise estimate of the day; in the covariance it must
+  // carry exactly its own precision 1/sd², whatever s² comes out: replace (noise/sd)² by s²/sd².
+  const priorShift = (target: number) => (run.config.prior ? (target - run.config.prior.noise ** 2) / run.config.prior.sd ** 2 : 0);
   const h = Float64Array.from(run.lm.jtwj);
-  if (run.config.prior) {
-    // The prior row entered the fit scaled by the noise estimate of the day; in the covariance it must
-    // carry exactly its own precision 1/sd², whatever s² comes out: replace (noise/sd)² by s²/sd².
-    const i = run.names.indexOf('cd');
-    const { noise, sd } = run.config.prior;
-    h[i * np + i] += (s2 - noise * noise) / (sd * sd);
+  if (run.config.prior) h[iCd * np + iCd] += priorShift(s2);
+  let inv = spdInverse(h, np);
+  if (!inv) return { cov: null, s2, phi: 0 };
+  let phi = 0;
+  // Note: the scale check's one-step run carries the chosen run's Jacobian, without the gravity column.
+  const J = run.lm.J;
+  if (correlated && J.length >= 2 * n * np && n >= 8) {
+    const c = residualCorrelation(run, n, inv, np);
+    phi = c.phi;
+    if (phi > 0) {
+      // Few effective points leave σ itself uncertain: scale it so that 1.96 stated errors still hold 95 %.
+      const nu = Math.max(3, 2 * n * ((1 - phi) / (1 + phi)) - np);
+      s2 = Math.max(c.s2, NOISE_FLOOR_M ** 2) * (studentT975(nu) / Z975) ** 2;
+      const hc = Float64Array.from(run.lm.jtwj);
+      if (run.config.prior) hc[iCd * np + iCd] += priorShift(s2);
+      const a = spdInverse(hc, np);
+      if (!a) return { cov: null, s2, phi };
+      // Meat: JᵀΣ_φJ over the data rows, plus the prior's precision as it stands in hc.
+      const meat = Float64Array.from(correlatedGram(J, run.lm.weights, n, np, phi));
+      if (run.config.prior) meat[iCd * np + iCd] += hc[iCd * np + iCd] - dataGramEntry(J, run.lm.weights, n, np, iCd);
+      inv = sandwich(a, meat, np);
+    }
   }
-  const inv = spdInverse(h, np);
-  if (!inv) return { cov: null, s2 };
   for (let i = 0; i < inv.length; i++) inv[i] *= s2;
-  for (let i = 0; i < np; i++) if (!(inv[i * np + i] >= 0) || !Number.isFinite(inv[i * np + i])) return { cov: null, s2 };
-  return { cov: inv, s2 };
+  for (let i = 0; i < np; i++) if (!(inv[i * np + i] >= 0) || !Number.isFinite(inv[i * np + i])) return { cov: null, s2, phi };
+  return { cov: inv, s2, phi };
+}
+
+/** The normal distribution's 97.5 % point. */
+const Z975 = 1.959963984540054;
+
+/**
+ * Student's t 97.5 % point for ν degrees of freedom (ν ≥ 3) by the Cornish–Fisher expansion to ν⁻³
+ * (Abramowitz & Stegun, *Handbook of Mathematical Functions* (1964) 26.7.5; within 2e-3 of the tables at ν = 3).
+ */
+function studentT975(nu: number): number {
+  const z = Z975, z2 = z * z;
+  const g1 = (z2 + 1) * z / 4;
+  const g2 = ((5 * z2 + 16) * z2 + 3) * z / 96;
+  const g3 = (((3 * z2 + 19) * z2 + 17) * z2 - 15) * z / 384;
+  return z + g1 / nu + g2 / (nu * nu) + g3 / (nu * nu * nu);
+}
+
+/** Σ_φ·X for the rows of one coordinate (every other row from `c`) of X (2n × np): AR(1) Toeplitz φ^|k−m| by two sweeps. */
+function ar1Times(x: Float64Array, n: number, np: number, phi: number, out: Float64Array): void {
+  const f = new Float64Array(np), b = new Float64Array(np);
+  for (let c = 0; c < 2; c++) {
+    f.fill(0); b.fill(0);
+    for (let k = 0; k < n; k++) {
+      const row = (2 * k + c) * np;
+      for (let a = 0; a < np; a++) { f[a] = x[row + a] + phi * f[a]; out[row + a] = f[a]; }
+    }
+    for (let k = n - 1; k >= 0; k--) {
+      const row = (2 * k + c) * np;
+      // out = forward + backward − diagonal (counted twice).
+      for (let a = 0; a < np; a++) { b[a] = x[row + a] + phi * b[a]; out[row + a] += b[a] - x[row + a]; }
+    }
+  }
+}
+
+/** Rows of the data Jacobian scaled by √wᵢ (2n × np). */
+function weightedRows(J: Float64Array, w: Float64Array, n: number, np: number): Float64Array {
+  const jw = new Float64Array(2 * n * np);
+  for (let k = 0; k < n; k++) {
+    const s = Math.sqrt(w[k]);
+    for (let c = 0; c < 2; c++) for (let a = 0; a < np; a++) jw[(2 * k + c) * np + a] = s * J[(2 * k + c) * np + a];
+  }
+  return jw;
+}
+
+/** XᵀY for 2n × np matrices. */
+function gram(x: Float64Array, y: Float64Array, rows: number, np: number): Float64Array {
+  const out = new Float64Array(np * np);
+  for (let i = 0; i < rows; i++) for (let a = 0; a < np; a++) {
+    const xa = x[i * np + a];
+    if (xa === 0) continue;
+    for (let b = 0; b < np; b++) out[a * np + b] += xa * y[i * np + b];
+  }
+  return out;
+}
+
+/** JᵀW^½Σ_φW^½J over the data rows. */
+function correlatedGram(J: Float64Array, w: Float64Array, n: number, np: number, phi: number): Float64Array {
+  const jw = weightedRows(J, w, n, np);
+  const g = new Float64Array(jw.length);
+  ar1Times(jw, n, np, phi, g);
+  return gram(jw, g, 2 * n, np);
+}
+
+/** (JᵀWJ)_{ii} over the data rows only. */
+function dataGramEntry(J: Float64Array, w: Float64Array, n: number, np: number, i: number): number {
+  let v = 0;
+  for (let k = 0; k < n; k++) v += w[k] * (J[2 * k * np + i] ** 2 + J[(2 * k + 1) * np + i] ** 2);
+  return v;
+}
+
+/** A·M·A for symmetric p × p matrices. */
+function sandwich(a: Float64Array, m: Float64Array, np: number): Float64Array {
+  const am = new Float64Array(np * np), out = new Float64Array(np * np);
+  for (let i = 0; i < np; i++) for (let k = 0; k < np; k++) { const v = a[i * np + k]; for (let j = 0; j < np; j++) am[i * np + j] += v * m[k * np + j]; }
+  for (let i = 0; i < np; i++) for (let k = 0; k < np; k++) { const v = am[i * np + k]; for (let j = 0; j < np; j++) out[i * np + j] += v * a[k * np + j]; }
+  return out;
+}
+
+/**
+ * The point-to-point correlation φ of the track's errors, from the residuals' lag-1 autocorrelation
+ * corrected for what the fit absorbs: residuals are ê = Mε with M = I − H, H = JAJᵀ, so under AR(1)
+ * errors E[Σ êᵢêᵢ₊₁] / E[Σ êᵢ²] = S(MΣ_φM) / tr(MΣ_φM) (S the lag-1 sum within each coordinate);
+ * φ solves this equal to the observed ratio (bisection on 0…0.98; the ratio grows with φ). The
+ * variance follows from E[Σ êᵢ²] = σ²(tr Σ_φ − tr(A·JᵀΣ_φJ)).
+ * @param run the fit; @param n points; @param a (JᵀWJ + P)⁻¹ unscaled; @param np parameters.
+ * @returns φ (0 when the residuals show no correlation beyond what the fit itself makes) and σ² (m²).
+ */
+function residualCorrelation(run: Run, n: number, a: Float64Array, np: number): { phi: number; s2: number } {
+  const { r, weights: w } = run.lm;
+  const jw = weightedRows(run.lm.J, w, n, np);
+  let ee = 0, lag = 0;
+  for (let k = 0; k < n; k++) for (let c = 0; c < 2; c++) {
+    const e = Math.sqrt(w[k]) * r[2 * k + c];
+    ee += e * e;
+    if (k + 1 < n) lag += e * Math.sqrt(w[k + 1]) * r[2 * (k + 1) + c];
+  }
+  if (!(ee > 0)) return { phi: 0, s2: 0 };
+  const observed = lag / ee;
+  const g = new Float64Array(jw.length);
+  // Expected lag-1 ratio and the trace term for a given φ.
+  const expected = (phi: number): { ratio: number; trace: number } => {
+    ar1Times(jw, n, np, phi, g);
+    const c = gram(jw, g, 2 * n, np);
+    const b = sandwich(a, c, np);
+    let trAC = 0;
+    for (let i = 0; i < np; i++) for (let k = 0; k < np; k++) trAC += a[i * np + k] * c[k * np + i];
+    let sSigma = 0, sH = 0, sHH = 0, trSigma = 0;
+    for (let k = 0; k < n; k++) for (let cc = 0; cc < 2; cc++) {
+      trSigma += w[k];
+      if (k + 1 >= n) continue;
+      const i0 = (2 * k + cc) * np, i1 = (2 * (k + 1) + cc) * np;
+      sSigma += Math.sqrt(w[k] * w[k + 1]) * phi;
+      // J_i·A·G_{i+1} + G_i·A·J_{i+1} and J_i·B·J_{i+1}.
+      for (let x = 0; x < np; x++) {
+        let ag = 0, aj = 0, bj = 0;
+        for (let y = 0; y < np; y++) { ag += a[x * np + y] * g[i1 + y]; aj += a[x * np + y] * jw[i1 + y]; bj += b[x * np + y] * jw[i1 + y]; }
+        sH += jw[i0 + x] * ag + g[i0 + x] * aj;
+        sHH += jw[i0 + x] * bj;
+      }
+    }
+    return { ratio: (sSigma - sH + sHH) / (trSigma - trAC), trace: trSigma - trAC };
+  };
+  const at0 = expected(0);
+  if (observed <= at0.ratio) return { phi: 0, s2: ee / Math.max(at0.trace, 1) };
+  let lo = 0, hi = 0.98;
+  if (expected(hi).ratio <= observed) lo = hi;
+  else {
+    // 14 halvings leave φ within 6e-5, far below what the track can tell.
+    for (let it = 0; it < 14; it++) {
+      const mid = 0.5 * (lo + hi);
+      if (expected(mid).ratio < observed) lo = mid; else hi = mid;
+    }
+  }
+  const phi = lo;
+  return { phi, s2: ee / Math.max(expected(phi).trace, 1) };
 }
 
 function stdErr(cov: Float64Array | null, np: number, i: number): number | null {
@@ -1046,7 +1210,7 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
   const s = stageFit(flown, options);
   const choice = chooseModel(s);
   const { chosen, cdPrior } = applyCdPrior(s, choice.chosen);
-  const { cov } = covarianceOf(chosen, s.n);
+  const { cov, phi } = covarianceOf(chosen, s.n, true);
   const release = findRelease(s, chosen, cov);
   checkRelease(s, chosen, release);
   const scaleCheck = checkScale(s, chosen);
@@ -1085,6 +1249,7 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
       droppedPoints: dropped,
     },
     reynoldsRange: f.reynoldsRange,
+    noiseCorrelation: { phi, effectivePoints: (s.n * (1 - phi)) / (1 + phi) },
     scaleCheck, modelSelection: choice.selection, cdPrior,
     warnings: s.warnings,
     setup: { launch, aero, ball, air, windSpeed: o.windSpeed, gravity: o.gravity },
