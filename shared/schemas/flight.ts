@@ -130,6 +130,8 @@ export interface FitSummary {
   cdError: number | null;
   /** Carry of the same launch in still ISO sea-level air, m. */
   standardCarryM: number | null;
+  /** What the launch figures refer to, and how many frames the fit traced back to it (null for fits of older engines). */
+  release: { mode: 'first-point' | 'time' | 'height'; backFrames: number | null } | null;
   warnings: FitWarning[];
 }
 
