@@ -183,6 +183,15 @@ describe('release and ground reference: bad input', () => {
     expect(above.body.error.fields.releaseHeightM).toBe('The release height must be at most 5 m: give it in metres (a 2.1 m release is 2.1).');
   });
 
+  it('keeps an athlete’s usual release height, and refuses one above 5 m', async () => {
+    const created = await fx.coach.post(clubPath(fx, '/athletes'), { displayName: 'Wren Halloway', releaseHeightM: 2.05 });
+    expect(created.status).toBe(201);
+    expect((await fx.coach.get(clubPath(fx, `/athletes/${created.body.data.id}`))).body.data.releaseHeightM).toBe(2.05);
+    const high = await fx.coach.patch(clubPath(fx, `/athletes/${created.body.data.id}`), { releaseHeightM: 6 });
+    expect(high.status).toBe(400);
+    expect(high.body.error.fields.releaseHeightM).toBe('The release height must be at most 5 m: enter it in metres (a 2.1 m release is 2.1).');
+  });
+
   it('refuses a release frame and a release height together', async () => {
     const res = await fx.coach.post(clubPath(fx, `/clips/${clipId}/flights`), { athleteId: fx.otherAthleteProfileId, action: 'punt', ballId: 'football-5', releaseHeightM: 1, releaseFrame: 20 });
     expect(res.status).toBe(400);
