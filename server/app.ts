@@ -21,6 +21,7 @@ import { closeConnectionsWhileDraining } from './lifecycle';
 import { accountRouter } from './routes/account';
 import { athletesRouter } from './routes/athletes';
 import { authRouter } from './routes/auth';
+import { ballsRouter } from './routes/balls';
 import { billingRouter, billingWebhookRouter } from './routes/billing';
 import { clipUploadsRouter } from './routes/clip-uploads';
 import { clipsRouter } from './routes/clips';
@@ -123,6 +124,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use(clubsRouter);
   api.use(membersRouter);
   api.use(athletesRouter);
+  api.use(ballsRouter);
   api.use(billingRouter);
   api.use(invitationsRouter);
   api.use(invitationLinksRouter);

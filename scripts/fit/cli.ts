@@ -6,7 +6,7 @@ import { readFile } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
 import {
   airFromConditions, airFromDensity, BALLS, BALL_IDS, CELSIUS_ZERO_K, ENGINE_VERSION, fitFlight, isPhysicsError, resolveBall,
-  type Air, type BallProps, type Conditions, type FitResult, type ModelChoice, type RobustLoss,
+  type Air, type BallProps, type Conditions, type FitResult, type ModelChoice, type ReleaseSpec, type RobustLoss,
 } from '../../shared/physics/index';
 import { parseFitTrackCsv, trackFileConditions, type TrackMeta } from '../../shared/tracks/csv';
 
@@ -29,6 +29,10 @@ Model:  --model auto|vacuum|linear|drag|drag-lift   (default auto: drag, or drag
         --wind M_S                 wind along the flight, + tailwind (default 0)
         --loss soft-l1|linear|cauchy|huber          robust loss (default soft-l1)
         --descending               accept flights that never rise (downward serves, spikes)
+Release (when the trace starts after it):
+        --release-time S           the release time in the file's clock (earlier samples left out)
+        --release-height M         or the release height above the ground (0 for a ball on the ground or a tee, up to 5)
+        --fps RATE                 the samples' frame rate, to count the frames traced back
 Other:  --balls                    list the ball catalogue and exit
         --help                     this text
 
@@ -107,6 +111,10 @@ export function fitLine(file: string, fit: FitResult): Record<string, unknown> {
     cdPriorUsed: fit.cdPrior?.used ?? false,
     extrapolated: fit.extrapolated,
     trackEnd: sig(fit.trackEnd, V),
+    releaseMode: fit.release.mode,
+    releaseBackTime: sig(fit.release.backTime, V),
+    releaseBackFrames: sig(fit.release.backFrames, 4),
+    noiseCorrelation: sig(fit.noiseCorrelation.phi, 3),
     points: fit.points,
     outliers: fit.outliers,
     noise: sig(fit.noise, E),
@@ -128,6 +136,8 @@ interface Defaults {
   model: ModelChoice;
   loss: RobustLoss;
   descending: boolean;
+  release?: ReleaseSpec;
+  fps?: number;
 }
 
 function parse(argv: string[]): { files: string[]; defaults: Defaults; help: boolean; balls: boolean } {
@@ -143,6 +153,7 @@ function parse(argv: string[]): { files: string[]; defaults: Defaults; help: boo
         humidity: { type: 'string' }, altitude: { type: 'string' },
         model: { type: 'string' }, wind: { type: 'string' }, loss: { type: 'string' },
         descending: { type: 'boolean' }, balls: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
+        'release-time': { type: 'string' }, 'release-height': { type: 'string' }, fps: { type: 'string' },
       },
     });
   } catch (e) {
@@ -164,6 +175,11 @@ function parse(argv: string[]): { files: string[]; defaults: Defaults; help: boo
     wind: num('wind', v.wind, -60, 60) ?? 0,
     model, loss, descending: !!v.descending,
   };
+  if (v['release-time'] !== undefined && v['release-height'] !== undefined) throw new UsageError('Give either --release-time or --release-height, not both.');
+  const releaseTime = num('release-time', v['release-time'], -1e6, 1e6), releaseHeight = num('release-height', v['release-height'], 0, 5);
+  if (releaseTime !== undefined) defaults.release = { time: releaseTime };
+  if (releaseHeight !== undefined) defaults.release = { height: releaseHeight };
+  defaults.fps = num('fps', v.fps, 1, 100000);
   if (v.ball !== undefined) defaults.ball = resolveBall(v.ball);
   const mass = num('mass', v.mass, 1e-4, 20), diameter = num('diameter', v.diameter, 1e-3, 1);
   if (mass !== undefined && diameter !== undefined) defaults.ball = { massKg: mass, diameterM: diameter, name: 'the ball' };
@@ -241,6 +257,8 @@ export async function runFitCli(argv: string[], io: CliIo): Promise<number> {
       const fit = fitFlight(track, {
         model: opts.defaults.model, ball, air, windSpeed: meta.windAlongFlightMps ?? opts.defaults.wind,
         loss: opts.defaults.loss, allowDescending: opts.defaults.descending,
+        ...(opts.defaults.release ? { release: opts.defaults.release } : {}),
+        ...(opts.defaults.fps ? { frameRate: opts.defaults.fps } : {}),
       });
       io.out(JSON.stringify(fitLine(file, fit)));
     } catch (e) {

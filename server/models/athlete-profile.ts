@@ -26,6 +26,8 @@ export class AthleteProfile extends Model<InferAttributes<AthleteProfile>, Infer
   declare dominantSide: DominantSide | null;
   /** Position or event, free text ("punter", "javelin"). */
   declare position: string | null;
+  /** Usual release height of the athlete's throws (m above the ground), offered for their flights. */
+  declare releaseHeightM: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -41,6 +43,7 @@ export function initAthleteProfile(sequelize: Sequelize): typeof AthleteProfile 
       birthYear: { type: DataTypes.SMALLINT.UNSIGNED, allowNull: true },
       dominantSide: { type: DataTypes.ENUM(...DOMINANT_SIDES), allowNull: true },
       position: { type: DataTypes.STRING(80), allowNull: true },
+      releaseHeightM: { type: DataTypes.DOUBLE, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

@@ -23,6 +23,10 @@ export class Flight extends Model<InferAttributes<Flight>, InferCreationAttribut
   declare ballId: string;
   declare frameStart: number;
   declare frameEnd: number;
+  /** The frame the coach marked as contact or release; null when not marked. */
+  declare releaseFrame: CreationOptional<number | null>;
+  /** "Released at height H" (m above the ground); null when not given. A marked frame wins over it. */
+  declare releaseHeightM: CreationOptional<number | null>;
   declare status: CreationOptional<FlightStatus>;
   declare attentionReason: string | null;
   declare notes: string | null;
@@ -43,6 +47,8 @@ export function initFlight(sequelize: Sequelize): typeof Flight {
       ballId: { type: DataTypes.STRING(64), allowNull: false },
       frameStart: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
       frameEnd: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+      releaseFrame: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+      releaseHeightM: { type: DataTypes.DOUBLE, allowNull: true },
       status: { type: DataTypes.ENUM(...FLIGHT_STATUSES), allowNull: false, defaultValue: 'uploaded' },
       attentionReason: { type: DataTypes.TEXT, allowNull: true },
       notes: { type: DataTypes.TEXT, allowNull: true },

@@ -10,6 +10,7 @@ import { BillingInvoice, initBillingInvoice } from './billing-invoice';
 import { Calibration, initCalibration } from './calibration';
 import { Clip, initClip } from './clip';
 import { Club, initClub } from './club';
+import { ClubBall, initClubBall } from './club-ball';
 import { ClubSubscription, initClubSubscription } from './club-subscription';
 import { CoachNote, initCoachNote } from './coach-note';
 import { Fit, initFit } from './fit';
@@ -33,6 +34,7 @@ initSession(sequelize);
 initClip(sequelize);
 initCalibration(sequelize);
 initFlightAction(sequelize);
+initClubBall(sequelize);
 initFlight(sequelize);
 initTrackPoint(sequelize);
 initFit(sequelize);
@@ -101,6 +103,7 @@ async function markLatestFits(fits: readonly Fit[], transaction: Transaction | n
 Fit.afterCreate((fit, options) => markLatestFits([fit], options.transaction));
 Fit.afterBulkCreate((fits, options) => markLatestFits(fits, options.transaction));
 Club.hasMany(FlightAction, { foreignKey: 'clubId', as: 'flightActions' });
+Club.hasMany(ClubBall, { foreignKey: 'clubId', as: 'balls' });
 Club.hasMany(Job, { foreignKey: 'clubId', as: 'jobs' });
 
 // Deleting a club removes its invitations; a deleted profile or inviter leaves the invitation with a null link.
@@ -135,6 +138,7 @@ export {
   Calibration,
   Clip,
   Club,
+  ClubBall,
   ClubSubscription,
   CoachNote,
   Fit,

@@ -124,7 +124,7 @@ async function insertCalibratedFlight(
   transaction: Transaction,
 ): Promise<void> {
   const input = calibrationInputSchema.parse(calibration);
-  await Calibration.create({ clubId, clipId, input, ...calibrationValues(input), supersededAt: null }, { transaction });
+  await Calibration.create({ clubId, clipId, input, ...(await calibrationValues(clubId, input)), supersededAt: null }, { transaction });
   const row = await Flight.create(
     { clubId, clipId, ...flight, status: points.length > 0 ? 'traced' : 'uploaded', attentionReason: null },
     { transaction },

@@ -13,6 +13,7 @@ export function toAthleteSummary(profile: AthleteProfile): AthleteProfileSummary
     birthYear: profile.birthYear ?? null,
     dominantSide: profile.dominantSide ?? null,
     position: profile.position ?? null,
+    releaseHeightM: profile.releaseHeightM ?? null,
     userId: profile.userId ?? null,
   };
 }
@@ -63,6 +64,7 @@ export async function createAthlete(club: ClubContext, body: AthleteCreateBody):
     birthYear: body.birthYear ?? null,
     dominantSide: body.dominantSide ?? null,
     position: body.position ?? null,
+    releaseHeightM: body.releaseHeightM ?? null,
   });
   return toAthleteSummary(profile);
 }
@@ -74,6 +76,7 @@ export async function updateAthlete(club: ClubContext, athleteId: number, body: 
   if (body.birthYear !== undefined) profile.birthYear = body.birthYear;
   if (body.dominantSide !== undefined) profile.dominantSide = body.dominantSide;
   if (body.position !== undefined) profile.position = body.position === '' ? null : body.position;
+  if (body.releaseHeightM !== undefined) profile.releaseHeightM = body.releaseHeightM;
   if (body.userId !== undefined) profile.userId = body.userId;
   await profile.save();
   return toAthleteSummary(profile);

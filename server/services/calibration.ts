@@ -3,8 +3,7 @@
  * that used it), answers the current one, and enqueues refits of the clip's flights on a change.
  */
 import { Op, type Transaction } from 'sequelize';
-import { BALLS } from '../../shared/physics';
-import { ballCheck, computeCalibration } from '../../shared/calibration/geometry';
+import { ballCheck, computeCalibration, OFF_PICTURE_LIMIT } from '../../shared/calibration/geometry';
 import {
   type BallCheck,
   type Calibration as CalibrationDto,
@@ -16,6 +15,7 @@ import { sequelize } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { Calibration, type Clip } from '../models';
+import { resolveFlightBall } from './balls';
 import { enqueueRefits } from './refits';
 import { findVisibleClip } from './visibility';
 
@@ -53,29 +53,34 @@ export function frameOf(cal: Calibration): CalibrationFrame {
 
 /**
  * What is stored beside a calibration's input: metres per pixel, the level angle and the ball's size check.
- * @throws ApiError VALIDATION_FAILED when the size check names a ball that is not in the catalogue
+ * @param clubId the club whose own balls count beside the catalogue
+ * @throws ApiError VALIDATION_FAILED when the size check names a ball that is in neither
  */
-export function calibrationValues(input: CalibrationInput): { metresPerPixel: number; levelAngleDeg: number; ballCheck: BallCheck | null } {
+export async function calibrationValues(clubId: number, input: CalibrationInput): Promise<{ metresPerPixel: number; levelAngleDeg: number; ballCheck: BallCheck | null }> {
   const frame = computeCalibration(input);
   let check: BallCheck | null = null;
   if (input.ball) {
-    const spec = BALLS[input.ball.ballId];
-    if (!spec) {
-      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue.`, {
-        'ball.ballId': 'Pick a ball from the catalogue.',
+    const ball = await resolveFlightBall(clubId, input.ball.ballId);
+    if (!ball) {
+      throw new ApiError('VALIDATION_FAILED', `Unknown ball "${input.ball.ballId}" for the size check: pick a ball from the catalogue or the club's balls.`, {
+        'ball.ballId': 'Pick a ball from the catalogue or the club’s balls.',
       });
     }
-    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, spec.diameterM.nominal);
+    check = ballCheck(input.ball.ballId, frame.metresPerPixel, input.ball.diameterPx, ball.diameterM);
   }
   return { metresPerPixel: frame.metresPerPixel, levelAngleDeg: frame.levelAngleDeg, ballCheck: check };
 }
 
-/** Points must lie in the frame (a calibration outside the picture is a misclick). */
-function checkInside(clip: Clip, input: CalibrationInput): void {
+/**
+ * Points may lie off the picture (the ground below a tight framing, the far end of a known distance), but
+ * not farther than {@link OFF_PICTURE_LIMIT} picture widths or heights from it: that far no one can place them.
+ */
+function checkNear(clip: Clip, input: CalibrationInput): void {
   const fields: Record<string, string> = {};
+  const w = clip.width * OFF_PICTURE_LIMIT, h = clip.height * OFF_PICTURE_LIMIT;
   const check = (path: string, p: PixelPoint) => {
-    if (p.xPx < 0 || p.yPx < 0 || p.xPx > clip.width || p.yPx > clip.height) {
-      fields[path] = `This point (${Math.round(p.xPx)}, ${Math.round(p.yPx)}) lies outside the ${clip.width}×${clip.height} frame: place it on the picture.`;
+    if (p.xPx < -w || p.yPx < -h || p.xPx > clip.width + w || p.yPx > clip.height + h) {
+      fields[path] = `This point (${Math.round(p.xPx)}, ${Math.round(p.yPx)}) lies more than a picture's width or height outside the ${clip.width}×${clip.height} frame, too far to place with any accuracy: mark a nearer point, or a level line on the picture and give its height above the ground.`;
     }
   };
   check('scale.a', input.scale.a);
@@ -101,8 +106,8 @@ export async function getCalibration(club: ClubContext, clipId: number): Promise
  */
 export async function setCalibration(club: ClubContext, clipId: number, input: CalibrationInput): Promise<CalibrationDto & { refitJobIds: number[] }> {
   const clip = await findVisibleClip(club, clipId);
-  checkInside(clip, input);
-  const values = calibrationValues(input);
+  checkNear(clip, input);
+  const values = await calibrationValues(club.id, input);
   const { cal, jobIds } = await sequelize.transaction(async (transaction) => {
     await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });
     const created = await Calibration.create(

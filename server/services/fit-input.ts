@@ -3,11 +3,12 @@
  * tests: the clip's current calibration turns the traced pixels into metres (t = frame / capture rate),
  * the session's conditions give the air and the wind along the flight, and the flight names the ball.
  */
-import { airFromConditions, BALLS, type Air, type Conditions as AirConditions } from '../../shared/physics';
+import { airFromConditions, type Air, type BallProps, type Conditions as AirConditions, type ReleaseSpec } from '../../shared/physics';
 import { pixelToMetres } from '../../shared/calibration/geometry';
 import type { Conditions } from '../../shared/schemas/session';
 import { JobFailure } from '../jobs/types';
 import { Clip, Flight, Session, TrackPoint, type Calibration } from '../models';
+import { resolveFlightBall } from './balls';
 import { currentCalibration, frameOf } from './calibration';
 import { conditionsOf } from './sessions';
 
@@ -36,6 +37,13 @@ export function windAlongFlight(conditions: Conditions): number {
   return conditions.windSpeedMps * Math.cos((conditions.windDirectionDeg * Math.PI) / 180);
 }
 
+/** The flight's release as the engine reads it: a marked frame wins over a height; none: the first traced point. */
+function releaseOf(flight: Flight, clip: Clip): { release?: ReleaseSpec } {
+  if (flight.releaseFrame !== null && flight.releaseFrame !== undefined) return { release: { time: flight.releaseFrame / clip.captureFps } };
+  if (flight.releaseHeightM !== null && flight.releaseHeightM !== undefined) return { release: { height: flight.releaseHeightM } };
+  return {};
+}
+
 export interface FitInput {
   flight: Flight;
   clip: Clip;
@@ -44,14 +52,17 @@ export interface FitInput {
   points: TrackPoint[];
   /** The points in seconds and metres (t from the capture rate, x along the flight, y up). */
   track: { t: number[]; x: number[]; y: number[] };
-  /** Ball, air and wind for `fitFlight` (no air: the engine assumes standard air); the model is the caller's choice. */
-  options: { ball: string; air?: Air; windSpeed: number };
+  /**
+   * Ball, air and wind for `fitFlight` (no air: the engine assumes standard air), the release (a marked frame
+   * as a time from the capture rate, or a height) and the capture rate; the model is the caller's choice.
+   */
+  options: { ball: BallProps; air?: Air; windSpeed: number; release?: ReleaseSpec; frameRate: number };
 }
 
 /**
  * Loads everything the fit of one flight needs.
  * @throws JobFailure `FLIGHT_GONE` (the flight, its clip or session was deleted), `CALIBRATION_REQUIRED`,
- *   `UNKNOWN_BALL` (the flight's ball is not in the catalogue)
+ *   `UNKNOWN_BALL` (the flight's ball is neither in the catalogue nor one of the club's balls)
  */
 export async function loadFitInput(flightId: number): Promise<FitInput> {
   const flight = await Flight.findByPk(flightId);
@@ -61,8 +72,9 @@ export async function loadFitInput(flightId: number): Promise<FitInput> {
   const calibration = await currentCalibration(clip.id);
   if (!calibration) throw new JobFailure('Calibrate the clip before fitting: the fit needs the traced points in metres.', 'CALIBRATION_REQUIRED');
   const points = await TrackPoint.findAll({ where: { flightId: flight.id }, order: [['frame', 'ASC']] });
-  if (!BALLS[flight.ballId]) {
-    throw new JobFailure(`The ball "${flight.ballId}" is not in the catalogue, so the fit has no mass and size for it. Pick a catalogue ball for this flight.`, 'UNKNOWN_BALL');
+  const ball = await resolveFlightBall(flight.clubId, flight.ballId);
+  if (!ball) {
+    throw new JobFailure(`The ball "${flight.ballId}" is neither in the catalogue nor one of the club's balls, so the fit has no mass and size for it. Pick a ball for this flight.`, 'UNKNOWN_BALL');
   }
   const frame = frameOf(calibration);
   const track: FitInput['track'] = { t: [], x: [], y: [] };
@@ -80,6 +92,12 @@ export async function loadFitInput(flightId: number): Promise<FitInput> {
     calibration,
     points,
     track,
-    options: { ball: flight.ballId, ...(air ? { air: airFromConditions(air) } : {}), windSpeed: windAlongFlight(conditions) },
+    options: {
+      ball,
+      ...(air ? { air: airFromConditions(air) } : {}),
+      windSpeed: windAlongFlight(conditions),
+      ...releaseOf(flight, clip),
+      frameRate: clip.captureFps,
+    },
   };
 }

@@ -26,8 +26,16 @@ export function toFitSummary(fit: Fit): FitSummary {
     cd: finiteOrNull(fit.result?.cd),
     cdError: finiteOrNull(fit.result?.cdError),
     standardCarryM: finiteOrNull(fit.result?.standardCarry),
+    release: releaseOf(fit.result?.release),
     warnings: fit.warnings ?? [],
   };
+}
+
+function releaseOf(value: unknown): FitSummary['release'] {
+  if (!value || typeof value !== 'object') return null;
+  const r = value as { mode?: unknown; backFrames?: unknown };
+  if (r.mode !== 'first-point' && r.mode !== 'time' && r.mode !== 'height') return null;
+  return { mode: r.mode, backFrames: finiteOrNull(r.backFrames) };
 }
 
 function finiteOrNull(value: unknown): number | null {

@@ -25,6 +25,7 @@ import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import type { JobSummary } from '../../shared/schemas/clip';
 import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
+import { checkFlightBall } from './balls';
 import { currentCalibration, toCalibrationDto } from './calibration';
 import { enqueueRefits } from './refits';
 import { pointsOf } from './tracks';
@@ -138,6 +139,8 @@ interface FlightListRow {
   fitCdError: string | number | null;
   fitStandardCarry: string | number | null;
   fitWarnings: string | FitWarning[] | null;
+  fitReleaseMode: string | null;
+  fitReleaseBackFrames: string | number | null;
 }
 
 function finiteOrNull(value: unknown): number | null {
@@ -159,6 +162,10 @@ function fitSummaryOf(row: FlightListRow): FitSummary | null {
     cd: finiteOrNull(row.fitCd),
     cdError: finiteOrNull(row.fitCdError),
     standardCarryM: finiteOrNull(row.fitStandardCarry),
+    release:
+      row.fitReleaseMode === 'first-point' || row.fitReleaseMode === 'time' || row.fitReleaseMode === 'height'
+        ? { mode: row.fitReleaseMode, backFrames: finiteOrNull(row.fitReleaseBackFrames) }
+        : null,
     warnings,
   };
 }
@@ -166,7 +173,7 @@ function fitSummaryOf(row: FlightListRow): FitSummary | null {
 /** A flight's own columns, as the model or the list's query gives them. */
 type FlightCore = Pick<
   Flight,
-  'id' | 'clubId' | 'clipId' | 'athleteProfileId' | 'action' | 'ballId' | 'frameStart' | 'frameEnd' | 'status' | 'attentionReason' | 'notes'
+  'id' | 'clubId' | 'clipId' | 'athleteProfileId' | 'action' | 'ballId' | 'frameStart' | 'frameEnd' | 'releaseFrame' | 'releaseHeightM' | 'status' | 'attentionReason' | 'notes'
 > & { createdAt: Date | string; updatedAt: Date | string };
 
 /**
@@ -178,7 +185,7 @@ export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
   if (ids.length === 0) return [];
   const rows = await sequelize.query<FlightListRow & FlightCore & { job: string | JobSummary | null }>(
       `SELECT f.id, f.club_id AS clubId, f.clip_id AS clipId, f.athlete_profile_id AS athleteProfileId, f.action, f.ball_id AS ballId,
-              f.frame_start AS frameStart, f.frame_end AS frameEnd, f.status, f.attention_reason AS attentionReason, f.notes,
+              f.frame_start AS frameStart, f.frame_end AS frameEnd, f.release_frame AS releaseFrame, f.release_height_m AS releaseHeightM, f.status, f.attention_reason AS attentionReason, f.notes,
               f.created_at AS createdAt, f.updated_at AS updatedAt,
               c.session_id AS sessionId, a.display_name AS athleteName,
               (SELECT COUNT(*) FROM track_points t WHERE t.flight_id = f.id) AS pointCount,
@@ -186,6 +193,7 @@ export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
               lf.launch_speed_mps AS fitSpeed, lf.launch_angle_deg AS fitAngle, lf.carry_m AS fitCarry,
               JSON_VALUE(lf.result, '$.cd') AS fitCd, JSON_VALUE(lf.result, '$.cdError') AS fitCdError,
               JSON_VALUE(lf.result, '$.standardCarry') AS fitStandardCarry, lf.warnings AS fitWarnings,
+              JSON_VALUE(lf.result, '$.release.mode') AS fitReleaseMode, JSON_VALUE(lf.result, '$.release.backFrames') AS fitReleaseBackFrames,
               (SELECT JSON_OBJECT('id', j.id, 'type', j.type, 'status', j.status, 'progress', j.progress, 'error', j.error)
                  FROM jobs j WHERE j.flight_id = f.id AND j.type IN ('flight.follow', 'flight.fit') ORDER BY j.id DESC LIMIT 1) AS job
          FROM flights f
@@ -216,6 +224,8 @@ function toDto(f: FlightCore, row: FlightListRow | undefined, job: JobSummary | 
     ballId: f.ballId,
     frameStart: Number(f.frameStart),
     frameEnd: Number(f.frameEnd),
+    releaseFrame: f.releaseFrame === null || f.releaseFrame === undefined ? null : Number(f.releaseFrame),
+    releaseHeightM: f.releaseHeightM === null || f.releaseHeightM === undefined ? null : Number(f.releaseHeightM),
     status: f.status,
     attentionReason: f.attentionReason ?? null,
     notes: f.notes ?? null,
@@ -409,14 +419,39 @@ function checkRange(clip: Clip, frameStart: number, frameEnd: number): void {
   }
 }
 
+/**
+ * A release frame must lie inside the flight's frames and not after its last traced point (the fit
+ * traces the flight back to the release, never forward).
+ * @throws ApiError VALIDATION_FAILED naming `releaseFrame`
+ */
+async function checkReleaseFrame(flightId: number | null, releaseFrame: number, frameStart: number, frameEnd: number, transaction?: Transaction): Promise<void> {
+  if (releaseFrame < frameStart || releaseFrame > frameEnd) {
+    throw new ApiError('VALIDATION_FAILED', `The release frame ${releaseFrame} lies outside the flight's frames ${frameStart}–${frameEnd}: mark the frame where the ball left the foot or hand.`, {
+      releaseFrame: `Between ${frameStart} and ${frameEnd}.`,
+    });
+  }
+  if (flightId === null) return;
+  const [row] = await sequelize.query<{ last: number | null }>('SELECT MAX(frame) AS last FROM track_points WHERE flight_id = :id', {
+    type: QueryTypes.SELECT, replacements: { id: flightId }, transaction,
+  });
+  const last = row?.last === null || row?.last === undefined ? null : Number(row.last);
+  if (last !== null && releaseFrame > last) {
+    throw new ApiError('VALIDATION_FAILED', `The release frame ${releaseFrame} comes after the last traced point (frame ${last}): the release is where the ball left the foot or hand, before the traced flight.`, {
+      releaseFrame: `At most ${last}, the last traced frame.`,
+    });
+  }
+}
+
 export async function createFlight(club: ClubContext, clipId: number, input: FlightInput): Promise<FlightDto> {
   const clip = await findVisibleClip(club, clipId);
   const flight = await sequelize.transaction(async (transaction) => {
     await checkAthlete(club.id, input.athleteId, transaction);
     await checkAction(club.id, input.action, transaction);
+    await checkFlightBall(club.id, input.ballId, transaction);
     const frameStart = input.frameStart ?? 0;
     const frameEnd = input.frameEnd ?? lastFrame(clip);
     checkRange(clip, frameStart, frameEnd);
+    if (input.releaseFrame !== undefined && input.releaseFrame !== null) await checkReleaseFrame(null, input.releaseFrame, frameStart, frameEnd, transaction);
     return Flight.create(
       {
         clubId: club.id,
@@ -426,6 +461,8 @@ export async function createFlight(club: ClubContext, clipId: number, input: Fli
         ballId: input.ballId,
         frameStart,
         frameEnd,
+        releaseFrame: input.releaseFrame ?? null,
+        releaseHeightM: input.releaseHeightM ?? null,
         attentionReason: null,
         notes: input.notes ?? null,
       },
@@ -449,6 +486,7 @@ export async function patchFlight(club: ClubContext, flightId: number, patch: Fl
       flight.action = patch.action;
     }
     const ballChanged = patch.ballId !== undefined && patch.ballId !== flight.ballId;
+    if (ballChanged) await checkFlightBall(club.id, patch.ballId!, transaction);
     if (patch.ballId !== undefined) flight.ballId = patch.ballId;
     if (patch.notes !== undefined) flight.notes = patch.notes ?? null;
     if (patch.frameStart !== undefined || patch.frameEnd !== undefined) {
@@ -469,6 +507,19 @@ export async function patchFlight(club: ClubContext, flightId: number, patch: Fl
       flight.frameStart = frameStart;
       flight.frameEnd = frameEnd;
     }
+    const releaseFrame = patch.releaseFrame !== undefined ? patch.releaseFrame : flight.releaseFrame ?? null;
+    const releaseHeightM = patch.releaseHeightM !== undefined ? patch.releaseHeightM : flight.releaseHeightM ?? null;
+    const releaseChanged = releaseFrame !== (flight.releaseFrame ?? null) || releaseHeightM !== (flight.releaseHeightM ?? null);
+    if (releaseChanged) {
+      if (releaseFrame !== null && releaseHeightM !== null) {
+        throw new ApiError('VALIDATION_FAILED', 'Give either the release frame or the release height, not both: clear the one you no longer want.', {
+          releaseHeightM: 'Clear the release frame first, or leave this empty.',
+        });
+      }
+      if (releaseFrame !== null) await checkReleaseFrame(flight.id, releaseFrame, flight.frameStart, flight.frameEnd, transaction);
+      flight.releaseFrame = releaseFrame;
+      flight.releaseHeightM = releaseHeightM;
+    }
     if (patch.status !== undefined && patch.status !== flight.status) {
       if (patch.status === 'reviewed' && !REVIEW_FROM.includes(flight.status)) {
         throw new ApiError('CONFLICT', `Only a fitted flight can be marked reviewed; this one is ${flight.status.replace('_', ' ')}. Fit it first.`);
@@ -479,7 +530,7 @@ export async function patchFlight(club: ClubContext, flightId: number, patch: Fl
       flight.status = patch.status;
     }
     await flight.save({ transaction });
-    if (ballChanged) await enqueueRefits(club.id, { flightId: flight.id, onlyFitted: true }, transaction);
+    if (ballChanged || releaseChanged) await enqueueRefits(club.id, { flightId: flight.id, onlyFitted: true }, transaction);
   });
   return getFlight(club, flightId);
 }

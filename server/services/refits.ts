@@ -40,12 +40,13 @@ async function calibratedClipIds(clipIds: number[], transaction?: Transaction): 
  */
 export async function enqueueRefits(
   clubId: number,
-  scope: { clipId?: number; flightId?: number; sessionId?: number; onlyFitted?: boolean },
+  scope: { clipId?: number; flightId?: number; sessionId?: number; ballId?: string; onlyFitted?: boolean },
   transaction?: Transaction,
 ): Promise<number[]> {
   const where: Record<string | symbol, unknown> = { clubId, status: { [Op.in]: scope.onlyFitted ? REFIT_FITTED : REFIT_ALL } };
   if (scope.flightId) where.id = scope.flightId;
   if (scope.clipId) where.clipId = scope.clipId;
+  if (scope.ballId) where.ballId = scope.ballId;
   if (scope.sessionId) {
     const rows = await sequelize.query<{ id: number }>('SELECT id FROM clips WHERE session_id = :id', {
       type: QueryTypes.SELECT,

@@ -3,14 +3,23 @@
  *
  * Method (common practice in planar video measurement): the scale is the known distance over the
  * pixel distance between two points in the plane of flight; a level line gives the horizontal; the
- * origin is a point on the ground under the release. With s = metres per pixel, h = the unit vector
- * along the level line pointing the way the ball flies, u = the unit perpendicular pointing up the
- * image, a pixel p maps to x = s·((p − o)·h), y = s·((p − o)·u). Assumes square pixels and a camera
+ * origin is a point on the ground under the release, or, when the ground is outside the picture, a point
+ * under the release on a marked line a known height y₀ above it. With s = metres per pixel, h = the
+ * unit vector along the level line pointing the way the ball flies, u = the unit perpendicular
+ * pointing up the image, a pixel p maps to x = s·((p − o)·h), y = y₀ + s·((p − o)·u). Points may lie
+ * off the picture, within {@link OFF_PICTURE_LIMIT}. Assumes square pixels and a camera
  * square to the plane of flight.
  *
  * Pure TypeScript, so the Trace screen previews exactly what the server stores.
  */
 import type { BallCheck, CalibrationFrame, CalibrationInput, PixelPoint } from '../schemas/calibration';
+
+/**
+ * How far outside the picture a calibration point may lie, in picture widths (left and right) and heights
+ * (above and below): a coach extends a line or a known distance past the edge by eye; much farther, the
+ * point cannot be placed to a useful accuracy (an error of a few pixels there tilts or stretches the frame).
+ */
+export const OFF_PICTURE_LIMIT = 1;
 
 /** Apparent over catalogue ball diameter outside 1 ± this is reported as not ok (a blurred ball looks bigger). */
 export const BALL_CHECK_TOLERANCE = 0.15;
@@ -57,6 +66,7 @@ export function computeCalibration(input: CalibrationInput): CalibrationFrame {
     h: { x: hx, y: hy },
     u: { x: ux, y: uy },
     origin: { xPx: input.origin.xPx, yPx: input.origin.yPx },
+    originHeightM: input.groundOffsetM ?? 0,
   };
 }
 
@@ -66,14 +76,14 @@ export function pixelToMetres(frame: CalibrationFrame, p: PixelPoint): { xM: num
   const dy = p.yPx - frame.origin.yPx;
   return {
     xM: frame.metresPerPixel * (dx * frame.h.x + dy * frame.h.y),
-    yM: frame.metresPerPixel * (dx * frame.u.x + dy * frame.u.y),
+    yM: (frame.originHeightM ?? 0) + frame.metresPerPixel * (dx * frame.u.x + dy * frame.u.y),
   };
 }
 
 /** The inverse of `pixelToMetres` (h and u are orthonormal, so the inverse is the transpose). */
 export function metresToPixel(frame: CalibrationFrame, m: { xM: number; yM: number }): PixelPoint {
   const x = m.xM / frame.metresPerPixel;
-  const y = m.yM / frame.metresPerPixel;
+  const y = (m.yM - (frame.originHeightM ?? 0)) / frame.metresPerPixel;
   return {
     xPx: frame.origin.xPx + x * frame.h.x + y * frame.u.x,
     yPx: frame.origin.yPx + x * frame.h.y + y * frame.u.y,

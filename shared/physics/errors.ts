@@ -48,6 +48,7 @@ export const FLIGHT_WARNING_CODES = [
   'LARGE_LIFT',
   'AIR_ASSUMED',
   'LINEAR_DRAG_UNUSUAL',
+  'RELEASE_EXTRAPOLATED',
 ] as const;
 
 export type FlightWarningCode = (typeof FLIGHT_WARNING_CODES)[number];

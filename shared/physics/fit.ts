@@ -11,7 +11,7 @@
  * (Schwarz, Ann. Stat. 6 (1978) 461; "positive evidence" ΔBIC > 2 after Kass & Raftery, JASA 90
  * (1995) 773); and a scale check by a fit that lets gravity float.
  */
-import { reynoldsNumber, dragRegime, standardAir, type Air, type DragRegime } from './air';
+import { reynoldsNumber, dragRegime, standardAir, SMOOTH_SPHERE_CRISIS_RE, type Air, type DragRegime } from './air';
 import { resolveBall, type BallProps } from './balls';
 import { STANDARD_GRAVITY } from './constants';
 import { PhysicsError, isPhysicsError, type FlightWarning } from './errors';
@@ -22,7 +22,10 @@ import {
 import { integrate } from './integrator';
 import { spdInverse, polyFit } from './linalg';
 import { gaussNewtonStep, levenbergMarquardt, type LmOptions, type LmProblem, type LmResult, type LmStopReason, type RobustLoss } from './lm';
-import { checkTrack, type Track } from './track';
+import {
+  checkReleaseHeight, traceBackToRelease, RELEASE_MAX_BACK_S, RELEASE_WARN_FRAMES, RELEASE_WARN_S, type ReleasePoint, type ReleaseSpec,
+} from './release';
+import { checkTrack, MIN_POINTS, type Track } from './track';
 import { withDefaults } from './options';
 
 export type ModelChoice = 'auto' | FlightModel;
@@ -51,6 +54,14 @@ export interface FitOptions {
   rtol?: number;
   /** Iteration limit per least-squares run (default 100). */
   maxIterations?: number;
+  /**
+   * The release, when the trace starts after it: `{ time }` in the track's clock (s; samples before it,
+   * a ball at rest, are left out) or `{ height }` above the ground (m, 0…5: 0 for a ball on the
+   * ground or a tee). Default: the first sample is the release.
+   */
+  release?: ReleaseSpec;
+  /** Capture rate of the samples (frames/s, > 0), to count the frames between the release and the first sample. */
+  frameRate?: number;
 }
 
 export const FIT_DEFAULTS = {
@@ -76,6 +87,12 @@ const LOSS_SCALE_SIGMAS = 2.5;
 const OUTLIER_SIGMAS = 4;
 /** A coarse gravity estimate outside ×1/12…×12 of standard is a unit or timing error, whatever the ball. */
 const COARSE_SCALE_BAND = 12;
+/**
+ * The landing is reported as extrapolated (`EXTRAPOLATED`) when more than this share of the carry lies
+ * beyond the last traced point: below it the fitted model's error over the untraced part is small
+ * beside the carry's own standard error on typical tracks (common practice).
+ */
+export const EXTRAPOLATED_CARRY_SHARE = 0.1;
 /** Generic C_d range for a ball without one (smooth to rough spheres, common practice). */
 const GENERIC_CD_RANGE = { min: 0.1, max: 0.6 };
 
@@ -127,7 +144,31 @@ export interface FitResult {
   outliers: number[];
   /** Time of the last sample after the release (s). */
   trackEnd: number;
+  /** Whether more than {@link EXTRAPOLATED_CARRY_SHARE} of the carry lies beyond the last traced point. */
   extrapolated: boolean;
+  /** Carry beyond the last traced point (m). */
+  extrapolatedCarry: number;
+  /**
+   * The release the launch figures refer to: `first-point` (the first sample), or traced back to a
+   * given `time` or `height`. `time` is in the input clock (s); `backTime` how long before the first
+   * traced sample (s) and `backFrames` in frames when the frame rate is known.
+   */
+  release: {
+    mode: 'first-point' | 'time' | 'height';
+    time: number;
+    backTime: number;
+    backTimeError: number | null;
+    backFrames: number | null;
+    /** Samples before the release time (a ball at rest) left out of the fit. */
+    droppedPoints: number;
+  };
+  /** Reynolds numbers over the fitted flight from the release to the ground (slowest and fastest air-relative speed). */
+  reynoldsRange: { min: number; max: number } | null;
+  /**
+   * Point-to-point correlation φ of the track's errors (AR(1), 0 = independent) that the stated errors
+   * allow for, and the number of independent points the track is worth, n(1 − φ)/(1 + φ).
+   */
+  noiseCorrelation: { phi: number; effectivePoints: number };
   scaleCheck: ScaleCheck | null;
   /** BIC of both models (lower is better); `drag` is null when the lift term was decisive (Wald z² − ln m > 27) and the drag fit was skipped. */
   modelSelection: { criterion: 'BIC'; drag: number | null; dragLift: number; chosen: FlightModel } | null;
@@ -135,7 +176,7 @@ export interface FitResult {
   warnings: FlightWarning[];
   /** Everything the planner needs to fly this launch again. */
   setup: { launch: Launch; aero: FlightAero; ball: BallProps | null; air: Air; windSpeed: number; gravity: number };
-  /** Time of the first sample in the input clock (s), and +1/−1 when the flight went towards −x and was mirrored. */
+  /** Time of the release in the input clock (s; the first sample unless a release was given), and +1/−1 when the flight went towards −x and was mirrored. */
   track: { t0: number; direction: 1 | -1 };
   covariance: { params: string[]; matrix: number[][] } | null;
 }
@@ -351,11 +392,17 @@ function runNoise(run: Run, n: number): { d: Float64Array; noise: number } {
 }
 
 /**
- * Covariance s²(JᵀWJ)⁻¹ with s² = Σ wᵢrᵢ² / (Σ wᵢ − p) over the traced points' residuals (the
- * weighted-least-squares estimate at the IRLS fixed point; Holland & Welsch 1977). Null when
- * JᵀWJ is singular (a parameter the track cannot determine).
+ * Covariance of the fitted parameters. With independent noise it is s²(JᵀWJ)⁻¹, s² = Σ wᵢrᵢ² / (Σ wᵢ − p)
+ * (the weighted-least-squares estimate at the IRLS fixed point; Holland & Welsch 1977). A follower's
+ * errors are correlated from frame to frame, which makes that too small: the errors of each coordinate
+ * are taken as an AR(1) series with correlation φ from point to point ({@link residualCorrelation}), and
+ * the covariance is the sandwich s²·A(JᵀΣ_φJ + P)A, A = (JᵀWJ + P)⁻¹, P the prior's precision in the
+ * units of the data (generalised least squares theory, Seber & Wild, *Nonlinear Regression* (1989)
+ * §2.1 and §6.2). With φ = 0 it is the plain covariance. Null when JᵀWJ is singular (a parameter the
+ * track cannot determine). The model choice and the prior decide on the plain covariance (`correlated`
+ * false: cheaper, and they compare fits of the same track); the reported errors use the correlated one.
  */
-function covarianceOf(run: Run, n: number): { cov: Float64Array | null; s2: number } {
+function covarianceOf(run: Run, n: number, correlated = false): { cov: Float64Array | null; s2: number; phi: number } {
   const np = run.names.length;
   let num = 0, wsum = 0;
   for (let k = 0; k < n; k++) {
@@ -364,20 +411,181 @@ function covarianceOf(run: Run, n: number): { cov: Float64Array | null; s2: numb
     wsum += 2 * w;
   }
   const dof = wsum - np;
-  const s2 = Math.max(dof > 0 ? num / dof : num, NOISE_FLOOR_M ** 2);
+  let s2 = Math.max(dof > 0 ? num / dof : num, NOISE_FLOOR_M ** 2);
+  const iCd = run.names.indexOf('cd');
+  // The prior row entered the fit scaled by the noise estimate of the day; in the covariance it must
+  // carry exactly its own precision 1/sd², whatever s² comes out: replace (noise/sd)² by s²/sd².
+  const priorShift = (target: number) => (run.config.prior ? (target - run.config.prior.noise ** 2) / run.config.prior.sd ** 2 : 0);
   const h = Float64Array.from(run.lm.jtwj);
-  if (run.config.prior) {
-    // The prior row entered the fit scaled by the noise estimate of the day; in the covariance it must
-    // carry exactly its own precision 1/sd², whatever s² comes out: replace (noise/sd)² by s²/sd².
-    const i = run.names.indexOf('cd');
-    const { noise, sd } = run.config.prior;
-    h[i * np + i] += (s2 - noise * noise) / (sd * sd);
+  if (run.config.prior) h[iCd * np + iCd] += priorShift(s2);
+  let inv = spdInverse(h, np);
+  if (!inv) return { cov: null, s2, phi: 0 };
+  let phi = 0;
+  // Note: the scale check's one-step run carries the chosen run's Jacobian, without the gravity column.
+  const J = run.lm.J;
+  if (correlated && J.length >= 2 * n * np && n >= 8) {
+    const c = residualCorrelation(run, n, inv, np);
+    phi = c.phi;
+    if (phi > 0) {
+      // Few effective points leave σ itself uncertain: scale it so that 1.96 stated errors still hold 95 %.
+      const nu = Math.max(3, 2 * n * ((1 - phi) / (1 + phi)) - np);
+      s2 = Math.max(c.s2, NOISE_FLOOR_M ** 2) * (studentT975(nu) / Z975) ** 2;
+      const hc = Float64Array.from(run.lm.jtwj);
+      if (run.config.prior) hc[iCd * np + iCd] += priorShift(s2);
+      const a = spdInverse(hc, np);
+      if (!a) return { cov: null, s2, phi };
+      // Meat: JᵀΣ_φJ over the data rows, plus the prior's precision as it stands in hc.
+      const meat = Float64Array.from(correlatedGram(J, run.lm.weights, n, np, phi));
+      if (run.config.prior) meat[iCd * np + iCd] += hc[iCd * np + iCd] - dataGramEntry(J, run.lm.weights, n, np, iCd);
+      inv = sandwich(a, meat, np);
+    }
   }
-  const inv = spdInverse(h, np);
-  if (!inv) return { cov: null, s2 };
   for (let i = 0; i < inv.length; i++) inv[i] *= s2;
-  for (let i = 0; i < np; i++) if (!(inv[i * np + i] >= 0) || !Number.isFinite(inv[i * np + i])) return { cov: null, s2 };
-  return { cov: inv, s2 };
+  for (let i = 0; i < np; i++) if (!(inv[i * np + i] >= 0) || !Number.isFinite(inv[i * np + i])) return { cov: null, s2, phi };
+  return { cov: inv, s2, phi };
+}
+
+/** The normal distribution's 97.5 % point. */
+const Z975 = 1.959963984540054;
+
+/**
+ * Student's t 97.5 % point for ν degrees of freedom (ν ≥ 3) by the Cornish–Fisher expansion to ν⁻³
+ * (Abramowitz & Stegun, *Handbook of Mathematical Functions* (1964) 26.7.5; within 2e-3 of the tables at ν = 3).
+ */
+function studentT975(nu: number): number {
+  const z = Z975, z2 = z * z;
+  const g1 = (z2 + 1) * z / 4;
+  const g2 = ((5 * z2 + 16) * z2 + 3) * z / 96;
+  const g3 = (((3 * z2 + 19) * z2 + 17) * z2 - 15) * z / 384;
+  return z + g1 / nu + g2 / (nu * nu) + g3 / (nu * nu * nu);
+}
+
+/** Σ_φ·X for the rows of one coordinate (every other row from `c`) of X (2n × np): AR(1) Toeplitz φ^|k−m| by two sweeps. */
+function ar1Times(x: Float64Array, n: number, np: number, phi: number, out: Float64Array): void {
+  const f = new Float64Array(np), b = new Float64Array(np);
+  for (let c = 0; c < 2; c++) {
+    f.fill(0); b.fill(0);
+    for (let k = 0; k < n; k++) {
+      const row = (2 * k + c) * np;
+      for (let a = 0; a < np; a++) { f[a] = x[row + a] + phi * f[a]; out[row + a] = f[a]; }
+    }
+    for (let k = n - 1; k >= 0; k--) {
+      const row = (2 * k + c) * np;
+      // out = forward + backward − diagonal (counted twice).
+      for (let a = 0; a < np; a++) { b[a] = x[row + a] + phi * b[a]; out[row + a] += b[a] - x[row + a]; }
+    }
+  }
+}
+
+/** Rows of the data Jacobian scaled by √wᵢ (2n × np). */
+function weightedRows(J: Float64Array, w: Float64Array, n: number, np: number): Float64Array {
+  const jw = new Float64Array(2 * n * np);
+  for (let k = 0; k < n; k++) {
+    const s = Math.sqrt(w[k]);
+    for (let c = 0; c < 2; c++) for (let a = 0; a < np; a++) jw[(2 * k + c) * np + a] = s * J[(2 * k + c) * np + a];
+  }
+  return jw;
+}
+
+/** XᵀY for 2n × np matrices. */
+function gram(x: Float64Array, y: Float64Array, rows: number, np: number): Float64Array {
+  const out = new Float64Array(np * np);
+  for (let i = 0; i < rows; i++) for (let a = 0; a < np; a++) {
+    const xa = x[i * np + a];
+    if (xa === 0) continue;
+    for (let b = 0; b < np; b++) out[a * np + b] += xa * y[i * np + b];
+  }
+  return out;
+}
+
+/** JᵀW^½Σ_φW^½J over the data rows. */
+function correlatedGram(J: Float64Array, w: Float64Array, n: number, np: number, phi: number): Float64Array {
+  const jw = weightedRows(J, w, n, np);
+  const g = new Float64Array(jw.length);
+  ar1Times(jw, n, np, phi, g);
+  return gram(jw, g, 2 * n, np);
+}
+
+/** (JᵀWJ)_{ii} over the data rows only. */
+function dataGramEntry(J: Float64Array, w: Float64Array, n: number, np: number, i: number): number {
+  let v = 0;
+  for (let k = 0; k < n; k++) v += w[k] * (J[2 * k * np + i] ** 2 + J[(2 * k + 1) * np + i] ** 2);
+  return v;
+}
+
+/** A·M·A for symmetric p × p matrices. */
+function sandwich(a: Float64Array, m: Float64Array, np: number): Float64Array {
+  const am = new Float64Array(np * np), out = new Float64Array(np * np);
+  for (let i = 0; i < np; i++) for (let k = 0; k < np; k++) { const v = a[i * np + k]; for (let j = 0; j < np; j++) am[i * np + j] += v * m[k * np + j]; }
+  for (let i = 0; i < np; i++) for (let k = 0; k < np; k++) { const v = am[i * np + k]; for (let j = 0; j < np; j++) out[i * np + j] += v * a[k * np + j]; }
+  return out;
+}
+
+/**
+ * The point-to-point correlation φ of the track's errors, from the residuals' lag-1 autocorrelation
+ * corrected for what the fit absorbs: residuals are ê = Mε with M = I − H, H = JAJᵀ, so under AR(1)
+ * errors E[Σ êᵢêᵢ₊₁] / E[Σ êᵢ²] = S(MΣ_φM) / tr(MΣ_φM) (S the lag-1 sum within each coordinate);
+ * φ solves this equal to the observed ratio (bisection on 0…0.98; the ratio grows with φ). The
+ * variance follows from E[Σ êᵢ²] = σ²(tr Σ_φ − tr(A·JᵀΣ_φJ)).
+ * @param run the fit; @param n points; @param a (JᵀWJ + P)⁻¹ unscaled; @param np parameters.
+ * @returns φ (0 when the residuals show no correlation beyond what the fit itself makes) and σ² (m²).
+ */
+function residualCorrelation(run: Run, n: number, a: Float64Array, np: number): { phi: number; s2: number } {
+  const { r, weights: w } = run.lm;
+  const jw = weightedRows(run.lm.J, w, n, np);
+  let ee = 0, lag = 0;
+  for (let k = 0; k < n; k++) for (let c = 0; c < 2; c++) {
+    const e = Math.sqrt(w[k]) * r[2 * k + c];
+    ee += e * e;
+    if (k + 1 < n) lag += e * Math.sqrt(w[k + 1]) * r[2 * (k + 1) + c];
+  }
+  if (!(ee > 0)) return { phi: 0, s2: 0 };
+  const observed = lag / ee;
+  const g = new Float64Array(jw.length);
+  // What does not depend on φ: JA (rows Jᵢ·A) and K = Σ (JA)ᵢᵀ(JA)ᵢ₊₁ over lag-1 pairs, so that
+  // Σ Jᵢ·B·Jᵢ₊₁ with B = A·C·A is Σ C∘K, and each φ costs one Toeplitz product and one Gram matrix.
+  const ja = new Float64Array(jw.length);
+  for (let i = 0; i < 2 * n; i++) for (let x = 0; x < np; x++) {
+    let v = 0;
+    for (let y = 0; y < np; y++) v += jw[i * np + y] * a[y * np + x];
+    ja[i * np + x] = v;
+  }
+  const kk = new Float64Array(np * np);
+  let trSigma = 0, pairWeight = 0;
+  for (let k = 0; k < n; k++) for (let cc = 0; cc < 2; cc++) {
+    trSigma += w[k];
+    if (k + 1 >= n) continue;
+    pairWeight += Math.sqrt(w[k] * w[k + 1]);
+    const i0 = (2 * k + cc) * np, i1 = (2 * (k + 1) + cc) * np;
+    for (let x = 0; x < np; x++) for (let y = 0; y < np; y++) kk[x * np + y] += ja[i0 + x] * ja[i1 + y];
+  }
+  // Expected lag-1 ratio and the trace term for a given φ.
+  const expected = (phi: number): { ratio: number; trace: number } => {
+    ar1Times(jw, n, np, phi, g);
+    const c = gram(jw, g, 2 * n, np);
+    let trAC = 0, sHH = 0;
+    for (let x = 0; x < np; x++) for (let y = 0; y < np; y++) { trAC += a[x * np + y] * c[y * np + x]; sHH += c[x * np + y] * kk[x * np + y]; }
+    let sH = 0;
+    for (let k = 0; k + 1 < n; k++) for (let cc = 0; cc < 2; cc++) {
+      const i0 = (2 * k + cc) * np, i1 = (2 * (k + 1) + cc) * np;
+      // Jᵢ·A·Gᵢ₊₁ + Gᵢ·A·Jᵢ₊₁ (A symmetric).
+      for (let x = 0; x < np; x++) sH += ja[i0 + x] * g[i1 + x] + g[i0 + x] * ja[i1 + x];
+    }
+    return { ratio: (pairWeight * phi - sH + sHH) / (trSigma - trAC), trace: trSigma - trAC };
+  };
+  const at0 = expected(0);
+  if (observed <= at0.ratio) return { phi: 0, s2: ee / Math.max(at0.trace, 1) };
+  let lo = 0, hi = 0.98;
+  if (expected(hi).ratio <= observed) lo = hi;
+  else {
+    // 12 halvings leave φ within 2.4e-4, far below what the track can tell.
+    for (let it = 0; it < 12; it++) {
+      const mid = 0.5 * (lo + hi);
+      if (expected(mid).ratio < observed) lo = mid; else hi = mid;
+    }
+  }
+  const phi = lo;
+  return { phi, s2: ee / Math.max(expected(phi).trace, 1) };
 }
 
 function stdErr(cov: Float64Array | null, np: number, i: number): number | null {
@@ -463,6 +671,9 @@ interface FittedFlight {
   outliers: number[];
   trackEnd: number;
   extrapolated: boolean;
+  extrapolatedCarry: number;
+  reynoldsRange: { min: number; max: number } | null;
+  release: ReleasePoint;
 }
 
 /** A model with standard gravity and no prior on C_d. */
@@ -654,21 +865,62 @@ function applyCdPrior(s: FitStage, chosen: Run): { chosen: Run; cdPrior: FitResu
   return { chosen: withPrior, cdPrior };
 }
 
+/** The coefficients of the equations of motion of a run's fitted values (its gravity and wind are the fit's). */
+function coefficientsOf(s: FitStage, chosen: Run): MotionCoefficients {
+  const p = chosen.lm.p;
+  const at = (name: string) => { const i = chosen.names.indexOf(name); return i >= 0 ? p[i] : 0; };
+  const model = chosen.config.model;
+  return { model, k: s.kappa * at('cd'), kl: s.kappa * at('cl'), beta: at('beta'), g: s.o.gravity, wind: s.o.windSpeed };
+}
+
 /**
- * Refuses a fitted release that goes down (unless allowed, then warns `NEVER_RISES`) or lies more
- * than three noise units or standard errors below the ground.
+ * The release the launch figures refer to: the first sample, or the fitted flight traced back from
+ * it to the given release time or height ({@link traceBackToRelease}), with the covariance carried along.
  * @param s the fit's shared state; @param chosen the kept run; @param cov its covariance (`names` order).
+ * @returns the release state (m, m/s), its covariance and how far back it lies (s).
+ * @throws PhysicsError `FIT_FAILED` when the release height cannot be reached, `BAD_OPTION` for a release
+ *   more than {@link RELEASE_MAX_BACK_S} s before the first sample.
+ */
+function findRelease(s: FitStage, chosen: Run, cov: Float64Array | null): ReleasePoint {
+  const p = chosen.lm.p;
+  const spec = s.o.release;
+  if (!spec) return { x: p[0], y: p[1], vx: p[2], vy: p[3], cov, backTime: 0, backTimeError: cov ? 0 : null };
+  let target: { backTime: number } | { height: number };
+  if ('time' in spec) {
+    const backTime = Math.max(0, s.prep.t0 - spec.time);
+    if (backTime > RELEASE_MAX_BACK_S) {
+      throw new PhysicsError('BAD_OPTION', `The release is marked ${fmtNum(backTime)} s before the first traced point, more than the ${RELEASE_MAX_BACK_S} s the fit will trace back: trace the ball from nearer the release, or check the release frame.`);
+    }
+    target = { backTime };
+  } else target = { height: spec.height };
+  const release = traceBackToRelease(coefficientsOf(s, chosen), s.kappa, chosen.names, p, cov, target, s.init.noise, s.o.rtol);
+  const warnAfter = s.o.frameRate ? RELEASE_WARN_FRAMES / s.o.frameRate : RELEASE_WARN_S;
+  if (release.backTime > warnAfter + 1e-9) {
+    const frames = s.o.frameRate ? ` (${fmtNum(release.backTime * s.o.frameRate, 2)} frames)` : '';
+    s.warnings.push({
+      code: 'RELEASE_EXTRAPOLATED',
+      message: `The release lies ${fmtNum(release.backTime * 1000, 3)} ms${frames} before the first traced point, more than ${s.o.frameRate ? `${RELEASE_WARN_FRAMES} frames` : `${RELEASE_WARN_S * 1000} ms`}: the launch figures are traced back with the fitted model over that gap. Trace the ball from nearer the release to measure them directly.`,
+    });
+  }
+  return release;
+}
+
+/**
+ * Refuses a release that goes down (unless allowed, then warns `NEVER_RISES`) or lies more
+ * than three noise units or standard errors below the ground.
+ * @param s the fit's shared state; @param chosen the kept run; @param release the release state and its covariance.
  * @throws PhysicsError `NEVER_RISES`, `FIT_FAILED`.
  */
-function checkRelease(s: FitStage, chosen: Run, cov: Float64Array | null): void {
-  const p = chosen.lm.p;
-  const y0 = p[1], vy0 = p[3];
+function checkRelease(s: FitStage, chosen: Run, release: ReleasePoint): void {
+  const y0 = release.y, vy0 = release.vy;
+  const cov = release.cov;
   if (!s.o.allowDescending && vy0 <= 0) {
     throw new PhysicsError('NEVER_RISES', 'The fitted flight never rises (it leaves the release going down). Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
   }
   if (vy0 <= 0) s.warnings.push({ code: 'NEVER_RISES', message: 'The ball leaves the release going down: the apex is the release point.' });
   if (y0 < 0 && y0 < -3 * Math.max(s.init.noise, stdErr(cov, chosen.names.length, 1) ?? 0)) {
-    throw new PhysicsError('FIT_FAILED', `The fitted release is ${fmtNum(-y0, 2)} m below the ground: check that y is measured up from the ground and the level line of the calibration.`);
+    const hint = s.o.release && 'time' in s.o.release ? ' The release frame may be too early: the flight traced back to it is underground.' : '';
+    throw new PhysicsError('FIT_FAILED', `The fitted release is ${fmtNum(-y0, 2)} m below the ground: check that y is measured up from the ground and the level line of the calibration.${hint}`);
   }
 }
 
@@ -761,14 +1013,16 @@ function checkScale(s: FitStage, chosen: Run): ScaleCheck | null {
  * @returns the fitted flight and its errors (m, s, m/s, degrees).
  * @throws PhysicsError `FIT_FAILED` when the fitted flight does not come down to the ground.
  */
-function estimateUncertainty(s: FitStage, chosen: Run, cov: Float64Array | null): FittedFlight {
+function estimateUncertainty(s: FitStage, chosen: Run, release: ReleasePoint): FittedFlight {
   const { o, n, ball, air, kappa, prep } = s;
   const names = chosen.names;
   const np = names.length;
   const p = chosen.lm.p;
   const idx = (name: string) => names.indexOf(name);
   const model = chosen.config.model;
-  const [x0, y0, vx0, vy0] = [p[0], p[1], p[2], p[3]];
+  // Everything below starts at the release; its covariance has the release state in the launch rows.
+  const cov = release.cov;
+  const { x: x0, y: y0, vx: vx0, vy: vy0 } = release;
   const cd = idx('cd') >= 0 ? p[idx('cd')] : null;
   const cl = idx('cl') >= 0 ? p[idx('cl')] : null;
   const beta = idx('beta') >= 0 ? p[idx('beta')] : null;
@@ -806,11 +1060,14 @@ function estimateUncertainty(s: FitStage, chosen: Run, cov: Float64Array | null)
     dragToWeight = (beta * vAir) / o.gravity;
   }
   let reynolds: number | null = null, regime: DragRegime | null = null, nearDragCrisis: boolean | null = null;
+  let reynoldsRange: FittedFlight['reynoldsRange'] = null;
   if (ball) {
     reynolds = reynoldsNumber(vAir, ball.diameterM, air);
-    const r = dragRegime(reynolds, ball.crisisReynolds);
-    regime = r.regime;
-    nearDragCrisis = r.nearDragCrisis;
+    regime = dragRegime(reynolds, ball.crisisReynolds).regime;
+    reynoldsRange = reynoldsOverFlight(coeffs, kappa, release, flight.flightTime, ball.diameterM, air, o.rtol);
+    // The crisis matters when the flight's own Reynolds numbers reach into the ball's band, not when launch is merely near it.
+    const [lo, hi] = ball.crisisReynolds ?? SMOOTH_SPHERE_CRISIS_RE;
+    nearDragCrisis = reynoldsRange.max >= lo && reynoldsRange.min <= hi;
   }
 
   const { d, noise } = runNoise(chosen, n);
@@ -818,7 +1075,10 @@ function estimateUncertainty(s: FitStage, chosen: Run, cov: Float64Array | null)
   for (let k = 0; k < n; k++) ss += d[k] * d[k];
   const outliers: number[] = [];
   if (s.robust) for (let k = 0; k < n; k++) if (d[k] > OUTLIER_SIGMAS * Math.SQRT2 * noise) outliers.push(k + 1);
-  const trackEnd = prep.tau[n - 1];
+  const trackEnd = prep.tau[n - 1] + release.backTime;
+  // Carry beyond the last traced point: the fitted x there (residual + sample) against the landing.
+  const xLast = chosen.lm.r[2 * (n - 1)] + prep.xs[n - 1];
+  const extrapolatedCarry = Math.max(0, flight.carry - (xLast - x0));
   return {
     model, names, cov, x0, y0, vx0, vy0,
     speed, speedError: propagate(cov, gradSpeed), angleDegError: propagate(cov, gradAngle), heightError: stdErr(cov, np, 1),
@@ -831,8 +1091,26 @@ function estimateUncertainty(s: FitStage, chosen: Run, cov: Float64Array | null)
     vacuum: { carry: vac.carry, apexHeight: vac.apexHeight, flightTime: vac.flightTime },
     terminalSpeed, dragToWeight, reynolds, regime, nearDragCrisis,
     rms: Math.sqrt(ss / n), noise, outliers, trackEnd,
-    extrapolated: trackEnd < 0.95 * flight.flightTime,
+    extrapolated: flight.carry > 0 && extrapolatedCarry > EXTRAPOLATED_CARRY_SHARE * flight.carry,
+    extrapolatedCarry, reynoldsRange, release,
   };
+}
+
+/**
+ * Reynolds numbers over a flight (41 evenly timed points from the release to the ground), from the
+ * air-relative speed: Re = ρVD/μ.
+ * @param c the flight's coefficients; @param kappa κ (1/m); @param release its release state (m, m/s);
+ * @param flightTime s; @param diameterM the ball's D (m); @param air density and viscosity; @param rtol tolerance.
+ */
+function reynoldsOverFlight(c: MotionCoefficients, kappa: number, release: ReleasePoint, flightTime: number, diameterM: number, air: Air, rtol: number): { min: number; max: number } {
+  const path = samplePath(c, kappa, release.x, release.y, release.vx, release.vy, flightTime, 41, rtol);
+  let min = Infinity, max = 0;
+  for (let i = 0; i < path.t.length; i++) {
+    const re = reynoldsNumber(Math.hypot(path.vx[i] - c.wind, path.vy[i]), diameterM, air);
+    if (re < min) min = re;
+    if (re > max) max = re;
+  }
+  return { min, max };
 }
 
 /**
@@ -863,7 +1141,7 @@ function addFitWarnings(s: FitStage, chosen: Run, f: FittedFlight, cdPrior: FitR
     }
   }
   if (f.extrapolated) {
-    warnings.push({ code: 'EXTRAPOLATED', message: `The track ends ${fmtNum(trackEnd, 3)} s after the release, ${Math.round((100 * trackEnd) / flight.flightTime)} % of the ${fmtNum(flight.flightTime, 3)} s flight: carry, landing and hang time are extrapolated with the fitted model.` });
+    warnings.push({ code: 'EXTRAPOLATED', message: `${fmtNum(f.extrapolatedCarry, 3)} m of the ${fmtNum(flight.carry, 3)} m carry (${Math.round((100 * f.extrapolatedCarry) / flight.carry)} %, more than the ${Math.round(100 * EXTRAPOLATED_CARRY_SHARE)} % flagged) lies beyond the last traced point, ${fmtNum(trackEnd, 3)} s after the release: carry, landing and hang time are extrapolated with the fitted model. Trace the ball closer to the landing to measure them.` });
   }
   if (outliers.length > 0) {
     const list = outliers.slice(0, 8).join(', ') + (outliers.length > 8 ? ', …' : '');
@@ -878,12 +1156,47 @@ function addFitWarnings(s: FitStage, chosen: Run, f: FittedFlight, cdPrior: FitR
   if (cl !== null && Math.abs(cl) > 0.5) {
     warnings.push({ code: 'LARGE_LIFT', message: `The lift coefficient ${fmtNum(cl, 2)} is larger than spinning balls usually reach (|C_L| ≲ 0.4): check the calibration's level line and the wind.` });
   }
-  if (f.nearDragCrisis && (model === 'drag' || model === 'drag-lift')) {
-    warnings.push({ code: 'NEAR_DRAG_CRISIS', message: `The Reynolds number at launch (${fmtNum(reynolds!, 2)}) is near this ball's drag crisis: C_d may change during the flight, and the fitted value is an average over it.` });
+  if (f.nearDragCrisis && f.reynoldsRange && (model === 'drag' || model === 'drag-lift')) {
+    const [lo, hi] = ball?.crisisReynolds ?? SMOOTH_SPHERE_CRISIS_RE;
+    warnings.push({ code: 'NEAR_DRAG_CRISIS', message: `The Reynolds number runs from ${fmtNum(f.reynoldsRange.min, 2)} to ${fmtNum(f.reynoldsRange.max, 2)} during the flight, into this ball's drag crisis (${fmtNum(lo, 2)}–${fmtNum(hi, 2)}): C_d may change during the flight, and the fitted value is an average over it.` });
   }
   if (model === 'linear' && reynolds !== null && reynolds > 1e3) {
     warnings.push({ code: 'LINEAR_DRAG_UNUSUAL', message: `Linear drag holds for slow, small objects (Reynolds number below about 1); at ${fmtNum(reynolds, 2)} this ball's drag grows with the square of its speed: prefer the drag model.` });
   }
+}
+
+/**
+ * Checks the release options and leaves out the samples before a release time (a ball at rest before
+ * the kick, or in the hand before the throw).
+ * @param track samples t (s), x, y (m); @param options the fit's `release` (time s or height m) and `frameRate` (frames/s).
+ * @returns the samples from the release on, and how many were left out.
+ * @throws PhysicsError `BAD_OPTION` for a release after the last sample, a height below the ground or above 5 m,
+ *   a frame rate that is not positive; `TOO_FEW_POINTS` when too few samples follow the release; the track's codes.
+ */
+function fromRelease(track: Track, options: FitOptions): { track: Track; dropped: number } {
+  const { release, frameRate } = options;
+  if (frameRate !== undefined && !(Number.isFinite(frameRate) && frameRate > 0)) {
+    throw new PhysicsError('BAD_OPTION', `Frame rate ${frameRate} is not a positive number of frames per second.`);
+  }
+  if (!release) return { track, dropped: 0 };
+  if ('height' in release) {
+    checkReleaseHeight(release.height);
+    return { track, dropped: 0 };
+  }
+  const { t, x, y } = checkTrack(track);
+  const tr = release.time;
+  const last = t[t.length - 1];
+  if (!Number.isFinite(tr)) throw new PhysicsError('BAD_OPTION', `The release time ${tr} is not a number of seconds.`);
+  if (tr > last + 1e-9) {
+    throw new PhysicsError('BAD_OPTION', `The release (t = ${fmtNum(tr, 4)} s) comes after the last traced point (t = ${fmtNum(last, 4)} s): mark the frame where the ball left the foot or hand, before the traced flight.`);
+  }
+  let first = 0;
+  while (first < t.length && t[first] < tr - 1e-9) first++;
+  const kept = t.length - first;
+  if (kept < MIN_POINTS) {
+    throw new PhysicsError('TOO_FEW_POINTS', `Only ${kept} traced point${kept === 1 ? '' : 's'} follow the release (t = ${fmtNum(tr, 4)} s); a fit needs at least ${MIN_POINTS}. Trace more of the flight after the release, or check the release frame.`, { points: kept });
+  }
+  return { track: { t: Array.from(t.subarray(first)), x: Array.from(x.subarray(first)), y: Array.from(y.subarray(first)) }, dropped: first };
 }
 
 /**
@@ -901,13 +1214,15 @@ function addFitWarnings(s: FitStage, chosen: Run, f: FittedFlight, cdPrior: FitR
  *   `MISSING_BALL`, `BAD_OPTION`, `FIT_FAILED`.
  */
 export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
-  const s = stageFit(track, options);
+  const { track: flown, dropped } = fromRelease(track, options);
+  const s = stageFit(flown, options);
   const choice = chooseModel(s);
   const { chosen, cdPrior } = applyCdPrior(s, choice.chosen);
-  const { cov } = covarianceOf(chosen, s.n);
-  checkRelease(s, chosen, cov);
+  const { cov, phi } = covarianceOf(chosen, s.n, true);
+  const release = findRelease(s, chosen, cov);
+  checkRelease(s, chosen, release);
   const scaleCheck = checkScale(s, chosen);
-  const f = estimateUncertainty(s, chosen, cov);
+  const f = estimateUncertainty(s, chosen, release);
   addFitWarnings(s, chosen, f, cdPrior);
 
   const { o, prep, ball, air } = s;
@@ -932,10 +1247,21 @@ export function fitFlight(track: Track, options: FitOptions = {}): FitResult {
     vacuum: f.vacuum,
     standardCarry: f.standardCarry,
     rms: f.rms, noise: f.noise, points: s.n, outliers: f.outliers, trackEnd: f.trackEnd, extrapolated: f.extrapolated,
+    extrapolatedCarry: f.extrapolatedCarry,
+    release: {
+      mode: !o.release ? 'first-point' : 'time' in o.release ? 'time' : 'height',
+      time: prep.t0 - f.release.backTime,
+      backTime: f.release.backTime,
+      backTimeError: f.release.backTimeError,
+      backFrames: o.frameRate ? f.release.backTime * o.frameRate : null,
+      droppedPoints: dropped,
+    },
+    reynoldsRange: f.reynoldsRange,
+    noiseCorrelation: { phi, effectivePoints: (s.n * (1 - phi)) / (1 + phi) },
     scaleCheck, modelSelection: choice.selection, cdPrior,
     warnings: s.warnings,
     setup: { launch, aero, ball, air, windSpeed: o.windSpeed, gravity: o.gravity },
-    track: { t0: prep.t0, direction: prep.direction },
+    track: { t0: prep.t0 - f.release.backTime, direction: prep.direction },
     covariance: f.cov ? { params: f.names, matrix: Array.from({ length: np }, (_, i) => Array.from(f.cov!.subarray(i * np, (i + 1) * np))) } : null,
   };
 }

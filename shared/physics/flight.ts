@@ -337,6 +337,8 @@ export function summaryOf(c: MotionCoefficients, raw: RawFlight, x0: number, y0:
 export function samplePath(c: MotionCoefficients, kappa: number, x0: number, y0: number, vx: number, vy: number, tEnd: number, points: number, rtol: number = SIMULATE_DEFAULTS.rtol): NonNullable<FlightSummary['path']> {
   const times = new Float64Array(points);
   for (let i = 0; i < points; i++) times[i] = (tEnd * i) / (points - 1);
+  // Note: tEnd·(n−1)/(n−1) can round above tEnd, and the integrator writes no output past its end.
+  times[points - 1] = tEnd;
   const out = new Float64Array(points * 4);
   if (c.model === 'vacuum') {
     for (let i = 0; i < points; i++) {

@@ -25,7 +25,7 @@ export {
 export { integrate, INTEGRATOR_DEFAULTS, type OdeRhs, type OdeEvent, type IntegrateOptions, type IntegrateResult } from './integrator';
 export { levenbergMarquardt, LM_DEFAULTS, ROBUST_LOSSES, type RobustLoss, type LmProblem, type LmOptions, type LmResult } from './lm';
 export {
-  fitFlight, fittedPath, FIT_DEFAULTS, NOISE_FLOOR_M,
+  fitFlight, fittedPath, FIT_DEFAULTS, NOISE_FLOOR_M, EXTRAPOLATED_CARRY_SHARE,
   type FitOptions, type FitResult, type ModelChoice, type ScaleCheck,
 } from './fit';
 export {
@@ -33,4 +33,5 @@ export {
   type FlightSetup, type WhatIfChange, type GridAxis, type CarryGrid, type Sensitivities,
 } from './planner';
 export { checkTrack, MIN_POINTS, type Track } from './track';
+export { RELEASE_MAX_BACK_S, RELEASE_MAX_HEIGHT_M, RELEASE_WARN_FRAMES, type ReleaseSpec } from './release';
 export { generateTrack, mulberry32, normalGenerator, type SyntheticTrackSpec } from './synthetic';

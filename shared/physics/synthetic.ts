@@ -49,6 +49,12 @@ export interface SyntheticTrackSpec {
   endTime?: number;
   /** Standard deviation of the position noise per coordinate (m); default 0. */
   noise?: number;
+  /**
+   * Frame-to-frame correlation of the noise, as a follower's errors are: each coordinate's error is an
+   * AR(1) series e_i = φ·e_{i−1} + √(1 − φ²)·σ·z_i with this φ (0 ≤ φ < 1; default 0, independent), so
+   * its standard deviation stays `noise` (Box & Jenkins, *Time Series Analysis* (1970) §3.2).
+   */
+  noiseCorrelation?: number;
   /** Points displaced by `size` (m) in a random direction, never the first two. */
   outliers?: { count: number; size: number };
   seed?: number;
@@ -86,10 +92,18 @@ export function generateTrack(spec: SyntheticTrackSpec): { t: number[]; x: numbe
   const dir = spec.direction ?? 1;
   const ps = spec.positionScale ?? 1, ts = spec.timeScale ?? 1;
   const t: number[] = [], x: number[] = [], y: number[] = [];
+  const phi = spec.noiseCorrelation ?? 0;
+  if (!(phi >= 0 && phi < 1)) throw new PhysicsError('BAD_OPTION', `Noise correlation ${phi} is not between 0 and 1 (excluded).`);
+  const innovation = Math.sqrt(1 - phi * phi);
+  let ex = 0, ey = 0;
   for (let i = 0; i < count; i++) {
+    // The first error is drawn from the stationary distribution; later ones follow the AR(1) recursion.
+    const zx = normal(), zy = normal();
+    ex = i === 0 ? zx : phi * ex + innovation * zx;
+    ey = i === 0 ? zy : phi * ey + innovation * zy;
     t.push(((spec.t0 ?? 0) + dense.t[i]) * ts);
-    x.push(((spec.x0 ?? 0) + dir * (dense.x[i] + noise * normal())) * ps);
-    y.push((dense.y[i] + noise * normal()) * ps);
+    x.push(((spec.x0 ?? 0) + dir * (dense.x[i] + noise * ex)) * ps);
+    y.push((dense.y[i] + noise * ey) * ps);
   }
   const outlierIndices: number[] = [];
   if (spec.outliers && spec.outliers.count > 0 && count > 4) {

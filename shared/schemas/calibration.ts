@@ -29,6 +29,17 @@ export const calibrationInputSchema = z
     }),
     level: z.object({ a: pixelPointSchema, b: pixelPointSchema }).nullable().optional(),
     origin: pixelPointSchema,
+    /**
+     * Height of the origin above the ground (m) when the ground is not in the picture: the origin is then
+     * a point on a marked line under the release, and heights count from the ground this far below it.
+     */
+    groundOffsetM: z
+      .number({ error: 'The height of the marked line above the ground must be a number of metres.' })
+      .refine(Number.isFinite, { error: 'The height of the marked line above the ground must be a finite number of metres.' })
+      .min(0, { error: 'The marked line cannot be below the ground: mark the ground itself, or a line above it and give its height.' })
+      .max(50, { error: 'The marked line must be at most 50 m above the ground: give its height in metres.' })
+      .nullable()
+      .optional(),
     direction: z.enum(CALIBRATION_DIRECTIONS, { error: 'Direction must be "right" or "left": the way the ball flies across the image.' }),
     ball: z
       .object({
@@ -74,6 +85,8 @@ export interface CalibrationFrame {
   /** Unit vector (image pixels, y down) pointing up. */
   u: { x: number; y: number };
   origin: PixelPoint;
+  /** Height of the origin above the ground (m): 0 when the origin is on the ground. */
+  originHeightM: number;
 }
 
 export interface Calibration extends CalibrationInput, CalibrationFrame {

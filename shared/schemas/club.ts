@@ -91,6 +91,11 @@ const athleteFields = {
     .trim()
     .max(80, { error: 'Keep the position or event to 80 characters or fewer.' })
     .nullable(),
+  releaseHeightM: z
+    .number({ error: 'Enter the release height as a number of metres, such as 2.1.' })
+    .min(0, { error: 'The release height cannot be below the ground: enter 0 or more metres.' })
+    .max(5, { error: 'The release height must be at most 5 m: enter it in metres (a 2.1 m release is 2.1).' })
+    .nullable(),
   userId: z
     .number({ error: 'Pick the member to link, or leave it empty.' })
     .int({ error: 'Pick the member to link, or leave it empty.' })
@@ -104,6 +109,7 @@ export const athleteCreateSchema = z
     birthYear: athleteFields.birthYear.optional(),
     dominantSide: athleteFields.dominantSide.optional(),
     position: athleteFields.position.optional(),
+    releaseHeightM: athleteFields.releaseHeightM.optional(),
     userId: athleteFields.userId.optional(),
   })
   .strict();
@@ -115,6 +121,7 @@ export const athleteUpdateSchema = z
     birthYear: athleteFields.birthYear.optional(),
     dominantSide: athleteFields.dominantSide.optional(),
     position: athleteFields.position.optional(),
+    releaseHeightM: athleteFields.releaseHeightM.optional(),
     userId: athleteFields.userId.optional(),
   })
   .strict()
@@ -152,6 +159,8 @@ export interface AthleteProfileSummary {
   birthYear: number | null;
   dominantSide: DominantSide | null;
   position: string | null;
+  /** Usual release height of the athlete's throws (m), offered for their flights; null when not known. */
+  releaseHeightM: number | null;
   userId: number | null;
 }
 

@@ -57,18 +57,32 @@ const flightFields = {
   frameStart: frameIndex('First frame').optional(),
   frameEnd: frameIndex('Last frame').optional(),
   notes: z.string().max(4000, { error: 'Notes must be at most 4000 characters.' }).nullable().optional(),
+  /** The frame of contact or release, when the trace starts after it; null: not marked. */
+  releaseFrame: frameIndex('Release frame').nullable().optional(),
+  /** "Released at height H" (m above the ground: 0 for a ball on the ground or a tee); null: not given. */
+  releaseHeightM: z
+    .number({ error: 'The release height must be a number of metres.' })
+    .refine(Number.isFinite, { error: 'The release height must be a finite number of metres.' })
+    .min(0, { error: 'The release height cannot be below the ground: give 0 for a ball on the ground or a tee, or the height of the hand at release.' })
+    .max(5, { error: 'The release height must be at most 5 m: give it in metres (a 2.1 m release is 2.1).' })
+    .nullable()
+    .optional(),
 };
 
 const rangeOk = (v: { frameStart?: number; frameEnd?: number }) => v.frameStart === undefined || v.frameEnd === undefined || v.frameEnd > v.frameStart;
 const rangeIssue = { error: 'The last frame must come after the first frame.', path: ['frameEnd'] };
+const releaseOk = (v: { releaseFrame?: number | null; releaseHeightM?: number | null }) =>
+  v.releaseFrame === undefined || v.releaseFrame === null || v.releaseHeightM === undefined || v.releaseHeightM === null;
+const releaseIssue = { error: 'Give either the release frame or the release height, not both: a marked frame already fixes the height.', path: ['releaseHeightM'] };
 
-export const flightInputSchema = z.object(flightFields).refine(rangeOk, rangeIssue);
+export const flightInputSchema = z.object(flightFields).refine(rangeOk, rangeIssue).refine(releaseOk, releaseIssue);
 export type FlightInput = z.infer<typeof flightInputSchema>;
 
 export const flightPatchSchema = z
   .object({ ...flightFields, status: z.enum(['reviewed', 'fitted'], { error: 'Status may be set to "reviewed" or back to "fitted" only.' }) })
   .partial()
-  .refine(rangeOk, rangeIssue);
+  .refine(rangeOk, rangeIssue)
+  .refine(releaseOk, releaseIssue);
 export type FlightPatch = z.infer<typeof flightPatchSchema>;
 
 /** Orders of the flights list on the server: `recent` is newest recorded first (the default), the rest by column. */
@@ -126,6 +140,8 @@ export interface FitSummary {
   cdError: number | null;
   /** Carry of the same launch in still ISO sea-level air, m. */
   standardCarryM: number | null;
+  /** What the launch figures refer to, and how many frames the fit traced back to it (null for fits of older engines). */
+  release: { mode: 'first-point' | 'time' | 'height'; backFrames: number | null } | null;
   warnings: FitWarning[];
 }
 
@@ -149,6 +165,10 @@ export interface Flight {
   ballId: string;
   frameStart: number;
   frameEnd: number;
+  /** Frame of contact or release marked by the coach, or null. */
+  releaseFrame: number | null;
+  /** "Released at height H" (m), or null; a marked frame wins over it. */
+  releaseHeightM: number | null;
   status: FlightStatus;
   attentionReason: string | null;
   notes: string | null;

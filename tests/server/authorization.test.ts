@@ -5,9 +5,10 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { newToken } from '../../server/auth/tokens';
-import { CoachNote, Invitation, WorkloadEntry } from '../../server/models';
+import { ClubBall, CoachNote, Invitation, WorkloadEntry } from '../../server/models';
 import { accountRouter } from '../../server/routes/account';
 import { athletesRouter } from '../../server/routes/athletes';
+import { ballsRouter } from '../../server/routes/balls';
 import { clubsRouter } from '../../server/routes/clubs';
 import { invitationsRouter } from '../../server/routes/invitations';
 import { membersRouter } from '../../server/routes/members';
@@ -46,7 +47,11 @@ const targets = {
   /** Fresh records for each call of a delete row (every caller deletes one of their own). */
   notePool: [] as number[],
   entryPool: [] as number[],
+  /** A club ball to edit, and one unused ball per caller to delete. */
+  ballId: 0,
+  deletableBallIds: [] as number[],
 };
+let ballSeq = 0;
 
 const CASES: Case[] = [
   {
@@ -229,6 +234,33 @@ const CASES: Case[] = [
     path: (f) => `${club(f)}/my-flights`,
     expect: { admin: 403, coach: 403, athlete: 200, outsider: 404, anonymous: 401 },
   },
+  {
+    method: 'get',
+    route: '/clubs/:clubId/balls',
+    path: (f) => `${club(f)}/balls`,
+    expect: { admin: 200, coach: 200, athlete: 200, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'post',
+    route: '/clubs/:clubId/balls',
+    path: (f) => `${club(f)}/balls`,
+    body: () => ({ name: `Matrix ball ${++ballSeq}`, massKg: 0.3, diameterM: 0.4 }),
+    expect: { admin: 201, coach: 201, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'patch',
+    route: '/clubs/:clubId/balls/:ballId',
+    path: (f) => `${club(f)}/balls/${targets.ballId}`,
+    body: () => ({ massKg: 0.31 }),
+    expect: { admin: 200, coach: 200, athlete: 403, outsider: 404, anonymous: 401 },
+  },
+  {
+    method: 'delete',
+    route: '/clubs/:clubId/balls/:ballId',
+    // One unused ball per caller, so that the admin's delete leaves one for the coach.
+    path: (f) => `${club(f)}/balls/${targets.deletableBallIds.shift() ?? 0}`,
+    expect: { admin: 204, coach: 204, athlete: 403, outsider: 404, anonymous: 401 },
+  },
 ];
 
 describe('authorization matrix', () => {
@@ -242,6 +274,9 @@ describe('authorization matrix', () => {
       Invitation.create({ clubId: f.clubId, email, role: 'coach', athleteProfileId: null, invitedByUserId: null, tokenHash: newToken().hash, expiresAt: new Date(Date.now() + 86_400_000), sentAt: new Date() });
     targets.resendInvitationId = (await invitation(uniqueEmail('resend'))).id;
     targets.revokeInvitationId = (await invitation(uniqueEmail('revoke'))).id;
+    const ball = (name: string) => ClubBall.create({ clubId: f.clubId, name, massKg: 0.3, diameterM: 0.4, cdMin: null, cdMax: null });
+    targets.ballId = (await ball('Matrix edited ball')).id;
+    for (let i = 0; i < 5; i++) targets.deletableBallIds.push((await ball(`Matrix spare ball ${i}`)).id);
     const session = await recordSession(f.clubId, '2026-02-02');
     [targets.teammateFlightId] = await recordFlights(f.clubId, session.clipId, [{ athleteId: f.otherAthleteProfileId }]);
     targets.teammateSessionId = session.sessionId;
@@ -257,8 +292,8 @@ describe('authorization matrix', () => {
     await mail.close();
   });
 
-  it('covers every route of the account, club, member, athlete, invitation, workload, notes and My flights routers when a route is added', () => {
-    const declared = [accountRouter, clubsRouter, membersRouter, athletesRouter, invitationsRouter, workloadRouter, notesRouter, myFlightsRouter].flatMap(routesOf).sort();
+  it('covers every route of the account, club, member, athlete, invitation, ball, workload, notes and My flights routers when a route is added', () => {
+    const declared = [accountRouter, clubsRouter, membersRouter, athletesRouter, invitationsRouter, ballsRouter, workloadRouter, notesRouter, myFlightsRouter].flatMap(routesOf).sort();
     const tested = [...new Set(CASES.map((c) => `${c.method} ${c.route}`))].sort();
     expect(tested).toEqual(declared);
   });

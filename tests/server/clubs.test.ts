@@ -123,7 +123,7 @@ describe('clubs: athlete profiles', () => {
     });
     expect(res.status).toBe(201);
     const created = res.body.data as AthleteProfileSummary;
-    expect(created).toEqual({ id: expect.any(Number), displayName: 'Perrin Ashgrove', birthYear: 2011, dominantSide: 'left', position: 'drop kicker', userId: null });
+    expect(created).toEqual({ id: expect.any(Number), displayName: 'Perrin Ashgrove', birthYear: 2011, dominantSide: 'left', position: 'drop kicker', releaseHeightM: null, userId: null });
     const read = await f.admin.get(`/api/v1/clubs/${f.clubId}/athletes/${created.id}`);
     expect(read.body.data).toEqual(created);
   });

@@ -1,7 +1,7 @@
 import { readdir, utimes } from 'node:fs/promises';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateTrack } from '../../shared/physics';
+import { ballProps, generateTrack } from '../../shared/physics';
 import { runSeeders } from '../../server/seeders';
 import { DEMO_PASSWORD, seed as seedClub } from '../../server/seeders/0001-demo-club';
 import { seed as seedFlights } from '../../server/seeders/0002-demo-flights';
@@ -304,7 +304,7 @@ describe('demo flights seed', () => {
           expect(input.track.x[i]).toBeCloseTo(p.xM, 9);
           expect(input.track.y[i]).toBeCloseTo(p.yM, 9);
         });
-        expect(input.options.ball).toBe(flight.ballId);
+        expect(input.options.ball).toEqual(ballProps(flight.ballId));
         expect(input.options.windSpeed).toBeCloseTo(0, 9);
         expect(input.options.air!.densityKgM3).toBeCloseTo(layout.air.densityKgM3, 12);
       }

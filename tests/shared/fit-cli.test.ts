@@ -63,7 +63,24 @@ describe('fit command', () => {
     expect(Math.abs(line.cd - 0.26)).toBeLessThan(0.005);
   });
 
+  it('traces a late-starting track back to the release height given on the command line', async () => {
+    const lines = readFileSync(file('punt-evening.csv'), 'utf8').split('\n');
+    const header = lines.findIndex((l) => l.startsWith('t,'));
+    // Leave out the first 6 samples: the trace starts after the release.
+    const late = [...lines.slice(0, header + 1), ...lines.slice(header + 7)].join('\n');
+    const out: string[] = [];
+    const full = JSON.parse((await run([file('punt-evening.csv')])).out[0]);
+    const status = await runFitCli(['--release-height', String(full.launchHeight), '--fps', '60', 'a.csv'], { out: (l) => out.push(l), err: () => {}, readFile: async () => late });
+    expect(status).toBe(0);
+    const line = JSON.parse(out[0]);
+    expect(line.releaseMode).toBe('height');
+    expect(line.releaseBackFrames).toBeGreaterThan(5);
+    expect(Math.abs(line.launchSpeed - full.launchSpeed) / full.launchSpeed).toBeLessThan(0.01);
+  });
+
   it.each([
+    [['--release-time', '0', '--release-height', '0', 'a.csv'], /either --release-time or --release-height/],
+    [['--release-height', '7', 'a.csv'], /--release-height 7 is outside 0…5/],
     [['--mass', '0.43', 'a.csv'], /--mass and --diameter go together/],
     [['--ball', 'football-5', '--mass', '0.43', '--diameter', '0.22', 'a.csv'], /either --ball or --mass/],
     [['--rho', '1.2', '--altitude', '1000', 'a.csv'], /either --rho or the weather/],

@@ -1,10 +1,13 @@
 /**
  * `flight.fit`: fit the calibrated track of a flight with the physics engine (shared/physics) and add
  * the fit to the flight's history — a refit never overwrites. The flight becomes `fitted`, or
- * `needs_attention` with the reason when the engine flags the result (for example a scale that
- * disagrees with gravity by more than a few per cent).
+ * `needs_attention` with the reason when the engine flags the result (a scale that disagrees with
+ * gravity by more than a few per cent, a C_d outside the ball's range) or when the calibration's
+ * ball-size cross-check failed.
  */
 import { ENGINE_VERSION, fitFlight, FLIGHT_MODELS, type FitResult, type ModelChoice } from '../../../shared/physics';
+import { BALL_CHECK_TOLERANCE } from '../../../shared/calibration/geometry';
+import type { BallCheck } from '../../../shared/schemas/calibration';
 import type { FitWarning } from '../../../shared/schemas/flight';
 import { sequelize } from '../../db';
 import { Fit, Flight, TrackPoint } from '../../models';
@@ -12,7 +15,17 @@ import { loadFitInput } from '../../services/fit-input';
 import { JobFailure, type JobHandler } from '../types';
 
 /** Warnings that make a fit need a coach's attention instead of counting as a plain result. */
-const ATTENTION_WARNINGS = new Set(['SCALE_DISAGREES', 'NOT_CONVERGED', 'NEGATIVE_CD']);
+const ATTENTION_WARNINGS = new Set(['SCALE_DISAGREES', 'NOT_CONVERGED', 'NEGATIVE_CD', 'CD_OUTSIDE_RANGE', 'BALL_SIZE_MISMATCH']);
+
+/** The calibration's ball-size cross-check as a warning of the fit, when it failed. */
+function ballCheckWarning(check: BallCheck | null | undefined): FitWarning | null {
+  if (!check || check.ok) return null;
+  const pct = Math.round(check.ratio * 100);
+  return {
+    code: 'BALL_SIZE_MISMATCH',
+    message: `The ball measures ${pct} % of its real diameter in the calibration (${(check.apparentDiameterM * 100).toFixed(1)} cm against ${(check.catalogueDiameterM * 100).toFixed(1)} cm): the scale, or the ball picked for the size check, is off by more than ${Math.round(BALL_CHECK_TOLERANCE * 100)} %. Re-check the two scale points and their distance, and the ball.`,
+  };
+}
 
 function pointsSignature(points: { id: number }[]): string {
   return `${points.length}:${points.reduce((max, p) => Math.max(max, p.id), 0)}`;
@@ -38,6 +51,8 @@ export const flightFitHandler: JobHandler = {
     progress(90);
 
     const warnings: FitWarning[] = result.warnings.map((w) => ({ code: w.code, message: w.message }));
+    const sizeWarning = ballCheckWarning(cal.ballCheck);
+    if (sizeWarning) warnings.unshift(sizeWarning);
     const attention = warnings.filter((w) => ATTENTION_WARNINGS.has(w.code));
     const status = attention.length > 0 ? 'needs_attention' : 'fitted';
     const params = {
@@ -47,6 +62,10 @@ export const flightFitHandler: JobHandler = {
       launchAngleDeg: round(result.launch.angleDeg),
       launchAngleError: round(result.launch.angleDegError),
       launchHeightM: round(result.launch.height),
+      releaseMode: result.release.mode,
+      releaseBackTimeS: round(result.release.backTime),
+      releaseBackFrames: round(result.release.backFrames),
+      pointsBeforeRelease: result.release.droppedPoints,
       cd: round(result.cd),
       cdError: round(result.cdError),
       cl: round(result.cl),

@@ -94,6 +94,17 @@ export function metricGroups(r: FitResult, units: UnitSystem, meta: { engineVers
     { key: 'launchAngle', label: 'Launch angle', value: formatNumberWithError(r.launch.angleDeg, r.launch.angleDegError, 1, '°') },
     { key: 'launchHeight', label: 'Launch height', value: formatWithError(r.launch.height, r.launch.heightError, 'length', units) },
   ];
+  // Fits of engines before 1.1 carry no release: their launch is the first traced point.
+  const release = r.release;
+  if (release && release.mode !== 'first-point') {
+    const back = release.backFrames !== null ? `${release.backFrames.toFixed(1)} frames` : seconds(release.backTime);
+    launch.push({
+      key: 'release',
+      label: 'Release',
+      value: release.mode === 'time' ? `marked frame, ${back} before the first mark` : `at the given height, ${back} before the first mark`,
+      hint: 'The launch figures are those of the release: the fitted flight traced back from the first mark.',
+    });
+  }
 
   const air: MetricRow[] = [];
   if (quadratic) air.push({ key: 'cd', label: 'Drag coefficient C_d', value: formatNumberWithError(r.cd, r.cdError, 2) });

@@ -13,9 +13,11 @@ export interface CalibrationDraft {
   origin: Vec2 | null;
   direction: 'right' | 'left';
   ballId: string | null;
+  /** Height of the origin above the ground (m) when the ground is outside the picture; null or 0: on the ground. */
+  groundOffsetM: number | null;
 }
 
-const EMPTY_DRAFT: CalibrationDraft = { scale: null, distanceM: null, level: null, origin: null, direction: 'right', ballId: null };
+const EMPTY_DRAFT: CalibrationDraft = { scale: null, distanceM: null, level: null, origin: null, direction: 'right', ballId: null, groundOffsetM: null };
 
 const vec = (p: { xPx: number; yPx: number }): Vec2 => ({ x: p.xPx, y: p.yPx });
 const px = (p: Vec2) => ({ xPx: p.x, yPx: p.y });
@@ -30,6 +32,7 @@ function draftFromClip(clip: Clip | null): CalibrationDraft {
     origin: vec(c.origin),
     direction: c.direction,
     ballId: c.ball?.ballId ?? null,
+    groundOffsetM: c.groundOffsetM ?? null,
   };
 }
 
@@ -56,6 +59,7 @@ export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<n
       scale: { a: px(d.scale.a), b: px(d.scale.b), distanceM: d.distanceM },
       level: d.level ? { a: px(d.level.a), b: px(d.level.b) } : null,
       origin: px(d.origin),
+      groundOffsetM: d.groundOffsetM,
       direction: d.direction,
       ball: null,
     };

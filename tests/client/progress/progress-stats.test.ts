@@ -39,6 +39,7 @@ function flight(id: number, status: FlightStatus, fit: Partial<FitSummary> | nul
     cd: 0.25,
     cdError: 0.02,
     standardCarryM: 49,
+    release: null,
     warnings: [],
     ...fit,
   };
@@ -53,6 +54,8 @@ function flight(id: number, status: FlightStatus, fit: Partial<FitSummary> | nul
     ballId: 'rugby',
     frameStart: 0,
     frameEnd: 100,
+    releaseFrame: null,
+    releaseHeightM: null,
     status,
     attentionReason: null,
     notes: null,

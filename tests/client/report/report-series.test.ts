@@ -83,6 +83,16 @@ describe('metricGroups', () => {
   });
 });
 
+describe('metricGroups release', () => {
+  it('adds a Release row when the launch was traced back to a given height, and none for the first mark', () => {
+    const late = { t: track.t.slice(4), x: track.x.slice(4), y: track.y.slice(4) };
+    const traced = fitFlight(late, { model: 'drag', ball: 'rugby', air: standardAir(), release: { height: 1.1 }, frameRate: 60 });
+    const rows = new Map(metricGroups(traced, 'metric', { engineVersion: '1.1.0' }).flatMap((g) => g.rows).map((r) => [r.key, r.value]));
+    expect(rows.get('release')).toMatch(/^at the given height, \d+\.\d frames before the first mark$/);
+    expect(new Set(metricGroups(fit, 'metric', { engineVersion: '1.1.0' }).flatMap((g) => g.rows).map((r) => r.key)).has('release')).toBe(false);
+  });
+});
+
 describe('formatWithError', () => {
   it('shows a small error to one significant figure when the unit\'s own decimals would round it to zero', () => {
     expect(formatWithError(19.5321, 0.021, 'speed', 'metric')).toBe('19.53 ± 0.02 m/s');

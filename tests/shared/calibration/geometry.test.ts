@@ -21,6 +21,26 @@ describe('computeCalibration', () => {
     expect(pixelToMetres(cal, { xPx: 100, yPx: 300 })).toEqual({ xM: 0, yM: 5 });
   });
 
+  it('counts heights from the ground below the origin when the origin is on a line H m up', () => {
+    const cal = computeCalibration({ ...base, groundOffsetM: 2 });
+    expect(cal.originHeightM).toBe(2);
+    expect(pixelToMetres(cal, { xPx: 100, yPx: 400 })).toEqual({ xM: 0, yM: 2 });
+    expect(pixelToMetres(cal, { xPx: 100, yPx: 300 })).toEqual({ xM: 0, yM: 7 });
+    expect(metresToPixel(cal, { xM: 0, yM: 2 })).toEqual({ xPx: 100, yPx: 400 });
+  });
+
+  it('maps an origin off the picture like any other (the ground 40 px below a 360 px frame)', () => {
+    const cal = computeCalibration({ ...base, origin: { xPx: 100, yPx: 400 }, scale: { a: { xPx: 100, yPx: 400 }, b: { xPx: 300, yPx: 400 }, distanceM: 10 } });
+    // The bottom edge of a 360 px picture lies 40 px, 2 m, above that ground.
+    expect(pixelToMetres(cal, { xPx: 100, yPx: 360 }).yM).toBeCloseTo(2, 12);
+  });
+
+  it('refuses a marked line below the ground', () => {
+    const res = calibrationInputSchema.safeParse({ ...base, groundOffsetM: -0.5 });
+    expect(res.success).toBe(false);
+    expect(res.error!.issues[0]!.message).toBe('The marked line cannot be below the ground: mark the ground itself, or a line above it and give its height.');
+  });
+
   it('mirrors x when the ball flies to the left', () => {
     const cal = computeCalibration({ ...base, direction: 'left' });
     const m = pixelToMetres(cal, { xPx: 60, yPx: 380 });
