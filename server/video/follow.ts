@@ -10,6 +10,7 @@
 import { cancelledError, VideoError } from './errors';
 import { detectBall, medianBackground, roiAround, type Detection } from './detect';
 import { openSource } from './frame-stream';
+import { fitBallistic, type BallisticPath } from './ballistic';
 import { fitMotion, predictAt, velocityAt, type MotionFit, type MotionPoint } from './motion';
 import type { FollowOptions, FollowPoint, FollowResult, FollowSource, FollowStart, FollowStopReason } from './types';
 
@@ -29,10 +30,17 @@ export const FOLLOW_DEFAULTS = {
   backgroundSamples: 9,
   /** Frames between the current frame and a background sample whose ball position is unknown. */
   unknownOffset: 6,
+  /** Longest the ball may go unseen inside the picture (hidden behind someone) before following stops: seconds, and frames at least. */
+  maxLostS: 0.3,
+  minLostFrames: 8,
   /** Detections below this confidence count as misses. */
   minConfidence: 0.2,
-  /** Frames the ball may spend above the top edge (a high kick) before the follower gives up: seconds. */
+  /** Longest the ball may stay out of the picture (a high kick over the top) and still be waited for: seconds. */
   maxCoastS: 3,
+  /** Frames missing between two points after which the short-range fit starts afresh from the later one. */
+  segmentGap: 3,
+  /** Points after a gap before the short-range fit takes over again from the flight's physics. */
+  segmentPoints: 4,
 } as const;
 
 interface TrackerConfig {
@@ -63,6 +71,11 @@ class Tracker {
   private fitFrom = 0;
   /** Frames before the start whose ball position is unknown and must not serve as background. */
   private untrustedBefore = -1;
+  /** Index of the first point after the latest gap: the short-range fit uses points from here on. */
+  private segmentFrom = 0;
+  /** The flight's physical path fitted to the points so far; refitted after each new point when needed. */
+  private path: BallisticPath | null = null;
+  private pathPoints = -1;
   framesExamined = 0;
 
   constructor(private readonly cfg: TrackerConfig) {
@@ -98,6 +111,7 @@ class Tracker {
     let pred: { x: number; y: number };
     let gate: number;
     let fit: MotionFit | null = null;
+    let predict: ((j: number) => { x: number; y: number }) | null = null;
     let vy = 0;
     const atRest = !this.launched && n >= 1;
     if (n < 2 || atRest) {
@@ -105,33 +119,54 @@ class Tracker {
       pred = n >= 1 ? active[n - 1]! : this.cfg.click;
       gate = this.cfg.maxSpeed * (1 + 0.2 * this.lost);
     } else {
-      fit = fitMotion(active, FOLLOW_DEFAULTS.fitWindow, 2);
-      pred = predictAt(fit, k);
-      const v = velocityAt(fit, k);
-      vy = v.vy;
-      const speed = Math.hypot(v.vx, v.vy);
-      const base = n < 4 ? Math.max(4, 0.8 * r, 0.35 * speed) : Math.max(2.5, 0.8 * r, 4 * fit.rms);
-      const gap = k - active[n - 1]!.frame - 1;
-      gate = base + gap * Math.max(1.5, 0.15 * speed) + 0.02 * gap * gap;
-      if (pred.x < 0 || pred.x > width || pred.y > height) return 'left-frame';
-      if (pred.y < -0.5 * r) {
-        // Above the top edge: a high ball often comes back into the picture. Wait for it.
+      const recent = this.points.slice(Math.max(this.fitFrom, this.segmentFrom));
+      const last = active[n - 1]!;
+      const gap = k - last.frame - 1;
+      // Across a gap (out of the picture, hidden) and just after one, the flight's physics fitted
+      // to the whole track predicts far better than a short polynomial.
+      const path = this.lost > 0 || this.coast > 0 || recent.length < FOLLOW_DEFAULTS.segmentPoints ? this.ballistic(active) : null;
+      if (recent.length >= 2) fit = fitMotion(recent, FOLLOW_DEFAULTS.fitWindow, 2);
+      if (path) {
+        const st = path.at(k);
+        pred = st;
+        vy = st.vy;
+        predict = (j) => path.at(j);
+        const speed = Math.hypot(st.vx, st.vy);
+        const base = Math.max(2.5, 0.8 * r, 4 * path.rms);
+        gate = base + gap * Math.max(0.5, 0.05 * speed) + 0.004 * gap * gap;
+      } else {
+        fit ??= fitMotion(active, FOLLOW_DEFAULTS.fitWindow, 2);
+        const f = fit;
+        pred = predictAt(f, k);
+        predict = (j) => predictAt(f, j);
+        const v = velocityAt(f, k);
+        vy = v.vy;
+        const speed = Math.hypot(v.vx, v.vy);
+        const base = recent.length < 4 ? Math.max(4, 0.8 * r, 0.35 * speed) : Math.max(2.5, 0.8 * r, 4 * f.rms);
+        gate = base + gap * Math.max(1.5, 0.15 * speed) + 0.02 * gap * gap;
+      }
+      if (pred.x < -0.5 * r || pred.x > width + 0.5 * r || pred.y < -0.5 * r || pred.y > height + 0.5 * r) {
+        // Out of the picture: no point, no guess. Wait for the ball while its path comes back in.
+        const along = path ?? this.ballistic(active);
+        const returns = along ? this.reenters(along, k) : pred.y < 0 && pred.x >= 0 && pred.x <= width;
+        if (!returns) return 'left-frame';
         this.coast++;
         return this.coast > this.cfg.maxCoast ? 'left-frame' : null;
       }
+      if (path && fit && recent.length < FOLLOW_DEFAULTS.segmentPoints) fit = null;
     }
 
     // While descending, also look back along the path to the last point: a ball that has landed
     // or bounced is found there, and that is how a landing is recognised.
     let centre = pred;
     let reach = gate;
-    const descending = fit !== null && n >= 6 && vy > Math.max(0.3, 0.03 * r);
+    const descending = fit !== null && this.lost === 0 && n >= 6 && vy > Math.max(0.3, 0.03 * r);
     if (descending) {
       const last = active[n - 1]!;
       centre = { x: (pred.x + last.x) / 2, y: (pred.y + last.y) / 2 };
       reach = gate + Math.hypot(pred.x - last.x, pred.y - last.y) / 2;
     }
-    const det = this.detectAt(k, buffer, centre, reach, pred, r, fit);
+    const det = this.detectAt(k, buffer, centre, reach, pred, r, predict);
     const confidence = det ? this.confidence(det, pred, gate, r) : 0;
     if (!det || confidence < FOLLOW_DEFAULTS.minConfidence) {
       this.lost++;
@@ -226,7 +261,7 @@ class Tracker {
     reach: number,
     pred: { x: number; y: number },
     r: number,
-    fit: MotionFit | null,
+    predict: ((j: number) => { x: number; y: number }) | null,
   ): Detection | null {
     const { width, height } = this.cfg;
     const frame = buffer.get(k);
@@ -240,7 +275,7 @@ class Tracker {
     for (const j of buffer.keys()) {
       if (j === k) continue;
       let pos: { x: number; y: number } | null = this.byFrame.get(j) ?? null;
-      if (!pos && fit && j >= firstTracked) pos = predictAt(fit, j);
+      if (!pos && predict && j >= firstTracked) pos = predict(j);
       if (pos) {
         if (Math.hypot(pos.x - centre.x, pos.y - centre.y) > exclusion) (j < k ? cleanPast : cleanAhead).push(j);
       } else if (Math.abs(j - k) >= FOLLOW_DEFAULTS.unknownOffset && j > this.untrustedBefore) {
@@ -285,9 +320,34 @@ class Tracker {
     return this.clarity(det, r) * (0.4 + 0.6 * cPred) * cEdge;
   }
 
+  /** The physical path fitted to the flight's points (cached until a point is added); null while too short. */
+  private ballistic(active: MotionPoint[]): BallisticPath | null {
+    if (this.pathPoints !== this.points.length) {
+      this.path = fitBallistic(active);
+      this.pathPoints = this.points.length;
+    }
+    return this.path;
+  }
+
+  /** Whether the path, out of the picture at frame k, comes back into it within the longest wait. */
+  private reenters(path: BallisticPath, k: number): boolean {
+    const { width, height } = this.cfg;
+    const r = this.radius ?? 4;
+    for (let j = k + 1; j <= k + this.cfg.maxCoast; j++) {
+      const s = path.at(j);
+      if (s.x >= r && s.x <= width - r && s.y >= r && s.y <= height - r) return true;
+      // Below the picture and falling, or beyond a side and moving away: it will not come back.
+      if (s.y > height + r && s.vy >= 0) return false;
+      if ((s.x < -r && s.vx <= 0) || (s.x > width + r && s.vx >= 0)) return false;
+    }
+    return false;
+  }
+
   private accept(k: number, det: Detection, confidence: number): void {
     // Confidence squared: a doubtful point should hardly bend the predicted path.
     const point = { frame: k, x: det.x, y: det.y, weight: Math.max(0.0025, confidence * confidence) };
+    const previous = this.points[this.points.length - 1];
+    if (previous && k - previous.frame - 1 > FOLLOW_DEFAULTS.segmentGap) this.segmentFrom = this.points.length;
     this.points.push(point);
     this.byFrame.set(k, point);
     this.conf.set(k, confidence);
@@ -360,7 +420,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const sx = src.width / src.sourceWidth;
     const sy = src.height / src.sourceHeight;
     const s = Math.sqrt(sx * sy);
-    const maxLost = options.maxLostFrames ?? Math.max(5, Math.round(fps / 10));
+    const maxLost = options.maxLostFrames ?? Math.max(FOLLOW_DEFAULTS.minLostFrames, Math.round(FOLLOW_DEFAULTS.maxLostS * fps));
     const tracker = new Tracker({
       width: src.width,
       height: src.height,
@@ -426,8 +486,14 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
       y: p.y / sy,
       confidence: Math.round(tracker.confidenceOf(p.frame) * 1000) / 1000,
     }));
+    const outOfView: FollowResult['outOfView'] = [];
+    for (let i = 1; i < points.length; i++) {
+      const from = points[i - 1]!.frame + 1;
+      if (points[i]!.frame > from) outOfView.push({ fromFrame: from, toFrame: points[i]!.frame - 1 });
+    }
     return {
       points,
+      outOfView,
       stoppedBecause: stopped ?? 'end-of-clip',
       radiusPx: tracker.radiusPx / s,
       captureFps: fps,

@@ -61,6 +61,13 @@ export interface FlightClipSpec {
   keyframeIntervalS?: number;
   /** Container rotation tag, degrees clockwise (the picture is stored turned back). Default 0. */
   rotationDeg?: 0 | 90 | 180 | 270;
+  /**
+   * A person walking across in front of the ball: their body's centre passes the ball's x at
+   * `atS` seconds, walking at `speedPxPerS` (negative: to the left; default −120), `widthPx` wide
+   * (default 4 ball diameters), standing from the ground to `topMarginPx` (default 3 ball radii)
+   * above the ball at that instant. The ball is hidden wherever it overlaps them.
+   */
+  occluder?: { atS: number; widthPx?: number; speedPxPerS?: number; topMarginPx?: number };
 }
 
 export interface TruthFrame {
@@ -70,8 +77,12 @@ export interface TruthFrame {
   /** True centre, pixels of the displayed picture. */
   x: number;
   y: number;
-  /** The whole disk is inside the picture. */
+  /** The whole disk is inside the picture and no part of it is hidden by the occluder. */
   visible: boolean;
+  /** Some part of the disk is behind the occluder (see `FlightClipSpec.occluder`). */
+  occluded: boolean;
+  /** No part of the ball can be seen: wholly outside the picture or wholly behind the occluder. */
+  outOfView: boolean;
   /** After launch and before landing. */
   airborne: boolean;
 }
@@ -269,6 +280,50 @@ function paintWalker(frame: Uint8ClampedArray, width: number, height: number, gr
   }
 }
 
+interface Occluder {
+  x0: number;
+  x1: number;
+  y0: number;
+  y1: number;
+}
+
+/** The occluding figure's box at time t, or null without one. */
+function occluderAt(spec: FlightClipSpec, centreAt: (t: number) => [number, number], groundY: number, t: number): Occluder | null {
+  const o = spec.occluder;
+  if (!o) return null;
+  const r = spec.ballRadiusPx;
+  const [bx, by] = centreAt(o.atS);
+  const w = o.widthPx ?? 8 * r;
+  const cx = bx + (o.speedPxPerS ?? -120) * (t - o.atS);
+  return { x0: cx - w / 2, x1: cx + w / 2, y0: by - r - (o.topMarginPx ?? 3 * r), y1: groundY + 2 };
+}
+
+/** Paints the occluding figure: a dark, slightly textured body (in front of the ball). */
+function paintOccluder(frame: Uint8ClampedArray, width: number, height: number, box: Occluder): void {
+  for (let y = Math.max(0, Math.floor(box.y0)); y < Math.min(height, Math.ceil(box.y1)); y++) {
+    for (let x = Math.max(0, Math.floor(box.x0)); x < Math.min(width, Math.ceil(box.x1)); x++) {
+      const p = (y * width + x) * 3;
+      const stripe = ((y >> 2) & 1) * 12;
+      frame[p] = 150 + stripe;
+      frame[p + 1] = 45 + stripe;
+      frame[p + 2] = 50;
+    }
+  }
+}
+
+/** Whether a disk of radius r at (x, y) lies wholly inside the box. */
+function diskInside(box: Occluder | null, x: number, y: number, r: number): boolean {
+  return !!box && x - r >= box.x0 && x + r <= box.x1 && y - r >= box.y0 && y + r <= box.y1;
+}
+
+/** Whether a disk of radius r at (x, y) overlaps the box. */
+function diskTouches(box: Occluder | null, x: number, y: number, r: number): boolean {
+  if (!box) return false;
+  const dx = Math.max(box.x0 - x, 0, x - box.x1);
+  const dy = Math.max(box.y0 - y, 0, y - box.y1);
+  return Math.hypot(dx, dy) < r + 0.5;
+}
+
 /**
  * Draws the ball as a shaded disk with anti-aliased edges, averaged over the positions it takes
  * during the exposure (motion blur). Coverage of an edge pixel is approximated by the distance of
@@ -418,6 +473,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
       centres.push(centreAt(t + dt));
     }
     paintBall(frame, width, height, centres, radius);
+    const box = occluderAt(spec, centreAt, groundY, t);
+    if (box) paintOccluder(frame, width, height, box);
     flicker = Math.max(-2, Math.min(2, flicker + (rand() - 0.5)));
     const offset = Math.floor(rand() * noiseLen);
     const mask = noiseLen - 1;
@@ -431,12 +488,15 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
     await write(frame);
     const [x, y] = centreAt(t);
     const sinceLaunch = t - launchT;
+    const occluded = diskTouches(box, x, y, radius);
     frames.push({
       frame: i,
       t,
       x,
       y,
-      visible: x - radius >= 0 && y - radius >= 0 && x + radius <= width && y + radius <= height,
+      visible: !occluded && x - radius >= 0 && y - radius >= 0 && x + radius <= width && y + radius <= height,
+      occluded,
+      outOfView: diskInside(box, x, y, radius) || x + radius <= 0 || y + radius <= 0 || x - radius >= width || y - radius >= height,
       airborne: sinceLaunch > 0 && (flight.landingT === null || sinceLaunch < flight.landingT),
     });
   }

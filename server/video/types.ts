@@ -167,7 +167,7 @@ export interface FollowPoint {
 export type FollowStopReason =
   /** No confident detection for `maxLostFrames` frames in a row. */
   | 'lost'
-  /** The predicted centre left the picture. */
+  /** The ball left the picture and its path does not bring it back (or not within 3 s); the points end at the last sighting. */
   | 'left-frame'
   /** The ball stopped descending (hit the ground or bounced). */
   | 'landed'
@@ -178,6 +178,11 @@ export interface FollowResult {
   /** One point per followed frame, in frame order, starting with the start frame. */
   points: FollowPoint[];
   stoppedBecause: FollowStopReason;
+  /**
+   * Runs of frames, between the first and the last point, in which the ball was out of view (out
+   * of the picture, hidden, or not found): they have no point, and no position is guessed for them.
+   */
+  outOfView: Array<{ fromFrame: number; toFrame: number }>;
   /** Measured (or given) ball radius in pixels. */
   radiusPx: number;
   captureFps: number;
