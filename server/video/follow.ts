@@ -479,9 +479,15 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
       }
       advance(Math.min(newest, lastFrame ?? Infinity), Math.min(newest, lastFrame ?? Infinity));
     }
+    // Times from the frames' own timestamps when they are not evenly spaced (playback seconds,
+    // scaled by the stream's nominal rate over the capture rate for slow motion); otherwise
+    // frame / fps exactly. Without a stated capture rate the timestamps are real time.
+    const times = options.frameTimesS ?? src.frameTimesS;
+    const timeScale = options.captureFps ? src.timestampRate / options.captureFps : 1;
+    const timeOf = (frame: number): number => (times && times[frame] !== undefined ? (times[frame]! - times[0]!) * timeScale : frame / fps);
     const points: FollowPoint[] = tracker.points.map((p) => ({
       frame: p.frame,
-      t: p.frame / fps,
+      t: timeOf(p.frame),
       x: p.x / sx,
       y: p.y / sy,
       confidence: Math.round(tracker.confidenceOf(p.frame) * 1000) / 1000,

@@ -68,11 +68,17 @@ export interface FlightClipSpec {
    * above the ball at that instant. The ball is hidden wherever it overlaps them.
    */
   occluder?: { atS: number; widthPx?: number; speedPxPerS?: number; topMarginPx?: number };
+  /**
+   * A variable frame rate: frame i is filmed at i / captureFps + jitter·sin(i / 2) seconds (keep the
+   * jitter under a quarter of the frame interval so times stay in order), and its timestamp says
+   * so. The truth's `t` is that instant. Default 0 (a constant rate).
+   */
+  timestampJitterS?: number;
 }
 
 export interface TruthFrame {
   frame: number;
-  /** Seconds at the capture rate. */
+  /** Seconds at the capture rate: the instant the frame was filmed. */
   t: number;
   /** True centre, pixels of the displayed picture. */
   x: number;
@@ -396,6 +402,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   const seed = spec.seed ?? 1;
   const clutter = spec.clutter ?? true;
   const frameCount = Math.round(durationS * captureFps);
+  const jitter = spec.timestampJitterS ?? 0;
+  const filmedAt = (i: number): number => i / captureFps + jitter * Math.sin(i / 2);
   const flight = simulateFlight(
     spec.speedMps ?? 14,
     ((spec.angleDeg ?? 45) * Math.PI) / 180,
@@ -430,6 +438,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   } else {
     args.push('-crf', String(spec.crf ?? 18));
   }
+  // Without B-frames, packets come in presentation order, so the timestamps can be rewritten per packet below.
+  if (jitter) args.push('-bf', '0', '-video_track_timescale', '90000');
   if (spec.keyframeIntervalS) args.push('-g', String(Math.max(1, Math.round(spec.keyframeIntervalS * playbackFps))));
   const rotation = spec.rotationDeg ?? 0;
   // Note: the picture is stored turned back and then tagged, so that a player (and ffmpeg's
@@ -438,7 +448,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   // then writes a display matrix that turns the picture counter-clockwise by the tag's angle.
   const turnBack = { 90: 'transpose=cclock', 180: 'hflip,vflip', 270: 'transpose=clock' } as const;
   const tagFor = { 90: '270', 180: '180', 270: '90' } as const;
-  const encodedPath = rotation === 0 ? videoPath : `${videoPath}.unrotated.mp4`;
+  const encodedPath = rotation === 0 && !jitter ? videoPath : `${videoPath}.encoded.mp4`;
   if (rotation !== 0) args.push('-vf', turnBack[rotation]);
   args.push('-movflags', '+faststart', encodedPath);
   const child = spawn(ffmpegPath(), args, { stdio: ['pipe', 'ignore', 'pipe'] });
@@ -464,7 +474,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   const frameInterval = 1 / captureFps;
   let flicker = 0;
   for (let i = 0; i < frameCount; i++) {
-    const t = i / captureFps;
+    const t = filmedAt(i);
     frame.set(scene.rgb);
     if (clutter) paintWalker(frame, width, height, groundY, t, durationS);
     const centres: Array<[number, number]> = [];
@@ -503,12 +513,17 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   child.stdin.end();
   const code = await exited;
   if (code !== 0) throw new Error(`ffmpeg failed to encode the test clip: ${lastErrorLine(stderr)}`);
-  if (rotation !== 0) {
-    const res = await runTool(ffmpegPath(), [
-      '-v', 'error', '-nostdin', '-y', '-i', encodedPath, '-c', 'copy', '-metadata:s:v:0', `rotate=${tagFor[rotation]}`, '-movflags', '+faststart', videoPath,
-    ]);
+  if (encodedPath !== videoPath) {
+    const copyArgs = ['-v', 'error', '-nostdin', '-y', '-i', encodedPath, '-c', 'copy'];
+    if (rotation !== 0) copyArgs.push('-metadata:s:v:0', `rotate=${tagFor[rotation]}`);
+    if (jitter) {
+      // Playback seconds of the jitter: the filmed instants scaled from capture to playback rate.
+      const shift = `round(${jitter * (captureFps / playbackFps)}*sin(N/2)/TB)`;
+      copyArgs.push('-bsf:v', `setts=pts='PTS+${shift}':dts='DTS+${shift}'`);
+    }
+    const res = await runTool(ffmpegPath(), [...copyArgs, '-movflags', '+faststart', videoPath]);
     await rm(encodedPath, { force: true });
-    if (res.code !== 0) throw new Error(`ffmpeg failed to tag the test clip's rotation: ${lastErrorLine(res.stderr)}`);
+    if (res.code !== 0) throw new Error(`ffmpeg failed to tag or retime the test clip: ${lastErrorLine(res.stderr)}`);
   }
 
   const landingFrame = flight.landingT === null ? null : Math.ceil((launchT + flight.landingT) * captureFps);
@@ -553,6 +568,10 @@ export interface BadFiles {
   goodFrames: string[];
   /** A JPEG frame among PNG frames of the same size. */
   mixedTypeFrames: string[];
+  /** An MP4 in which one frame is stamped a second before the frames around it. */
+  backwardsTimestamps: string;
+  /** An MP4 whose timestamps jump half a second after frame 20 and repeat at frame 30. */
+  jumpyTimestamps: string;
 }
 
 /** Makes every kind of bad upload in `dir` (created when missing). Needs ffmpeg; takes about a second. */
@@ -576,6 +595,15 @@ export async function makeBadFiles(dir: string): Promise<BadFiles> {
   await truncate(p('cut-no-index.mp4'), Math.floor((await stat(p('cut-no-index.mp4'))).size * 0.7));
 
   await ff(['-f', 'lavfi', '-i', 'sine=frequency=440:duration=1', '-c:a', 'aac', p('sound-only.mp4')]);
+
+  // Timestamps rewritten on a stream copy (the picture has no B-frames: packet N is frame N). The
+  // decode times stay in order, as muxers insist, while one presentation time goes back a second.
+  await ff(['-i', p('whole-faststart.mp4'), '-c', 'copy', '-bsf:v', "setts=pts='if(eq(N,15),PTS-round(1/TB),PTS)':dts='DTS-round(1.5/TB)'", p('backwards.mp4')]);
+  await ff([
+    '-i', p('whole-faststart.mp4'), '-c', 'copy',
+    '-bsf:v', "setts=pts='PTS+if(gte(N,20),round(0.5/TB),0)-if(eq(N,30),round(0.04/TB),0)':dts='DTS+if(gte(N,20),round(0.5/TB),0)-if(eq(N,30),round(0.04/TB),0)'",
+    p('jumpy.mp4'),
+  ]);
 
   // Rename the sample entry `avc1` inside `stsd` to a code no decoder knows: the container stays
   // valid, the stream's codec becomes unreadable.
@@ -608,5 +636,7 @@ export async function makeBadFiles(dir: string): Promise<BadFiles> {
     mixedSizeFrames,
     goodFrames,
     mixedTypeFrames,
+    backwardsTimestamps: p('backwards.mp4'),
+    jumpyTimestamps: p('jumpy.mp4'),
   };
 }

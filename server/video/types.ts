@@ -43,8 +43,20 @@ export interface ClipProbe {
   frameRate: number;
   /** The same rate as ffprobe's exact fraction, for example `30000/1001`. */
   frameRateFraction: string;
-  /** False when the container's nominal and average rates differ (variable frame rate). */
+  /**
+   * The stream's nominal rate (`r_frame_rate`): for a variable-rate clip the rate its timestamps
+   * count in, the one a slow-motion clip's timestamps are scaled from. Equal to `frameRate` otherwise.
+   */
+  nominalFrameRate: number;
+  /** False when the container's nominal and average rates differ, or the frames' timestamps are not evenly spaced (variable frame rate). */
   constantFrameRate: boolean;
+  /**
+   * Presentation time of every frame, seconds at the playback rate from frame 0, when the frames
+   * are not evenly spaced; null for a constant rate (then frame i is at i / frameRate).
+   */
+  frameTimesS: number[] | null;
+  /** What is odd about the timestamps (they jump or repeat), in words for the coach; null when nothing is. */
+  timestampWarning: string | null;
   /** Number of video frames. */
   frameCount: number;
   /** `header` when the container states it (`nb_frames`), `counted` when ffprobe counted packets. */
@@ -133,8 +145,16 @@ export interface FollowStart {
 }
 
 export interface FollowOptions {
-  /** Capture rate for `t` (seconds = frame / captureFps). Default: the source's rate. */
+  /**
+   * Capture rate for `t`. A constant-rate clip: t = frame / captureFps. A variable-rate one: t is
+   * the frame's presentation time × playback rate / captureFps. Default: the source's rate.
+   */
   captureFps?: number;
+  /**
+   * Presentation times of the frames (seconds at the playback rate, as `ClipProbe.frameTimesS`),
+   * for a source that does not carry them (extracted frames of a variable-rate clip).
+   */
+  frameTimesS?: number[] | null;
   /** Stop after this many consecutive frames without a confident detection. Default: a tenth of a second of frames, at least 5. */
   maxLostFrames?: number;
   /** Last frame to consider (inclusive). Default: the end of the clip. */
@@ -156,7 +176,7 @@ export interface FollowOptions {
 
 export interface FollowPoint {
   frame: number;
-  /** Seconds since frame 0 at the capture rate. */
+  /** Seconds since frame 0 in real time: from the frame's own timestamp, scaled for slow motion. */
   t: number;
   x: number;
   y: number;

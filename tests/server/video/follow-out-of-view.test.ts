@@ -87,6 +87,30 @@ describe('followBall when the ball goes out of view', () => {
   });
 });
 
+describe('followBall on a clip with a variable frame rate', () => {
+  it('takes every time from the frame\'s own timestamp, not from frame / rate, and keeps its accuracy', async () => {
+    const clip = await testClip('variableRate', CLIP_SPECS.variableRate as FlightClipSpec);
+    const start = click(clip.truth);
+    const result = await followBall(clip.videoPath, start, { captureFps: 60 });
+    const { medianPx, followedShare } = score(result, clip.truth, start.frame);
+    expect(medianPx).toBeLessThanOrEqual(1.5);
+    expect(followedShare).toBeGreaterThanOrEqual(0.95);
+    let offBeat = 0;
+    for (const p of result.points) {
+      expect(Math.abs(p.t - clip.truth.frames[p.frame]!.t)).toBeLessThan(2e-5);
+      offBeat = Math.max(offBeat, Math.abs(p.t - p.frame / 60));
+    }
+    expect(offBeat).toBeGreaterThan(0.003);
+  });
+
+  it('scales the timestamps by playback over capture rate when the coach says the clip is slow motion', async () => {
+    const clip = await testClip('variableRate', CLIP_SPECS.variableRate as FlightClipSpec);
+    const start = click(clip.truth);
+    const result = await followBall(clip.videoPath, start, { captureFps: 240 });
+    for (const p of result.points.slice(0, 20)) expect(p.t).toBeCloseTo(clip.truth.frames[p.frame]!.t / 4, 4);
+  });
+});
+
 describe('fitBallistic', () => {
   /** Points of a flight with quadratic drag, a = (0, g) − k|v|v, integrated finely (RK4, 50 steps per frame). */
   function dragFlight(frames: number, g: number, k: number): Array<{ frame: number; x: number; y: number; weight: number }> {
