@@ -74,6 +74,20 @@ export interface FlightClipSpec {
    * so. The truth's `t` is that instant. Default 0 (a constant rate).
    */
   timestampJitterS?: number;
+  /**
+   * A camera turned to follow the ball: the picture is a window on a wider scene whose centre
+   * moves `panPx` to the right over the clip (eased in and out), `tiltPx` down, while the camera
+   * rolls by up to `rollDeg` (a half sine over the clip). Frame 0 is square and unmoved: it is the
+   * reference frame, and the launch point and ground are given in its pixels.
+   */
+  pan?: { panPx: number; tiltPx?: number; rollDeg?: number };
+}
+
+/** Maps a frame's pixels to the reference frame's: ref = R(rotRad)·(p − c) + c + (dx, dy), c the picture centre. */
+export interface CameraToReference {
+  dx: number;
+  dy: number;
+  rotRad: number;
 }
 
 export interface TruthFrame {
@@ -91,6 +105,10 @@ export interface TruthFrame {
   outOfView: boolean;
   /** After launch and before landing. */
   airborne: boolean;
+  /** With a panning camera: the centre in the reference frame's pixels, and how this frame maps there. */
+  xRef?: number;
+  yRef?: number;
+  camera?: CameraToReference;
 }
 
 export interface FlightTruth {
@@ -317,6 +335,49 @@ function paintOccluder(frame: Uint8ClampedArray, width: number, height: number, 
   }
 }
 
+/**
+ * Takes the camera's picture from the world canvas: frame pixel centre p maps to the world at
+ * R(rot)·(p − c) + c + (dx, dy) + (x0, y0); colours are interpolated bilinearly.
+ */
+function resample(
+  src: Uint8ClampedArray,
+  sw: number,
+  sh: number,
+  dst: Uint8ClampedArray,
+  width: number,
+  height: number,
+  cam: CameraToReference,
+  x0: number,
+  y0: number,
+): void {
+  const c = Math.cos(cam.rotRad);
+  const s = Math.sin(cam.rotRad);
+  const ox = x0 + cam.dx + width / 2 - 0.5;
+  const oy = y0 + cam.dy + height / 2 - 0.5;
+  for (let v = 0; v < height; v++) {
+    const ry = v + 0.5 - height / 2;
+    for (let u = 0; u < width; u++) {
+      const rx = u + 0.5 - width / 2;
+      const wx = Math.min(sw - 1.001, Math.max(0, c * rx - s * ry + ox));
+      const wy = Math.min(sh - 1.001, Math.max(0, s * rx + c * ry + oy));
+      const ix = Math.floor(wx);
+      const iy = Math.floor(wy);
+      const fx = wx - ix;
+      const fy = wy - iy;
+      const p00 = (iy * sw + ix) * 3;
+      const p10 = p00 + 3;
+      const p01 = p00 + sw * 3;
+      const p11 = p01 + 3;
+      const q = (v * width + u) * 3;
+      for (let k = 0; k < 3; k++) {
+        const a = src[p00 + k]! + (src[p10 + k]! - src[p00 + k]!) * fx;
+        const b = src[p01 + k]! + (src[p11 + k]! - src[p01 + k]!) * fx;
+        dst[q + k] = a + (b - a) * fy;
+      }
+    }
+  }
+}
+
 /** Whether a disk of radius r at (x, y) lies wholly inside the box. */
 function diskInside(box: Occluder | null, x: number, y: number, r: number): boolean {
   return !!box && x - r >= box.x0 && x + r <= box.x1 && y - r >= box.y0 && y + r <= box.y1;
@@ -412,12 +473,37 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
     1 / (captureFps * 16),
     durationS + 1,
   );
+  // With a panning camera everything is drawn on a wider world canvas; (x0, y0) is where the
+  // reference frame's top-left corner sits on it.
+  const pan = spec.pan;
+  const panPx = pan?.panPx ?? 0;
+  const tiltPx = pan?.tiltPx ?? 0;
+  const roll = ((pan?.rollDeg ?? 0) * Math.PI) / 180;
+  const margin = pan ? Math.ceil(Math.abs(roll) * width * 0.6 + 8) : 0;
+  const worldW = width + Math.ceil(Math.abs(panPx)) + 2 * margin;
+  const worldH = height + Math.ceil(Math.abs(tiltPx)) + 2 * margin;
+  const x0 = margin + Math.max(0, -panPx);
+  const y0 = margin + Math.max(0, -tiltPx);
+  const cameraAt = (t: number): CameraToReference => {
+    const u = Math.min(1, Math.max(0, t / durationS));
+    const ease = u * u * (3 - 2 * u);
+    return { dx: panPx * ease, dy: tiltPx * ease, rotRad: roll * Math.sin(Math.PI * u) };
+  };
   const centreAt = (t: number): [number, number] => {
     const [xm, ym] = flight.position(t - launchT);
-    return [launchX + xm * scale, groundY - ym * scale];
+    return [x0 + launchX + xm * scale, y0 + groundY - ym * scale];
+  };
+  /** World position → this frame's pixels. */
+  const toFrame = (cam: CameraToReference, wx: number, wy: number): [number, number] => {
+    const rx = wx - x0 - cam.dx - width / 2;
+    const ry = wy - y0 - cam.dy - height / 2;
+    const c = Math.cos(cam.rotRad);
+    const s = Math.sin(cam.rotRad);
+    return [c * rx + s * ry + width / 2, -s * rx + c * ry + height / 2];
   };
 
-  const scene = paintScene(width, height, groundY, seed, clutter);
+  const world = paintScene(worldW, worldH, y0 + groundY, seed, clutter);
+  const scene = pan ? { rgb: new Uint8ClampedArray(width * height * 3), width, height } : world;
   // Sensor noise: a table of roughly normal values (sum of four uniforms), read at a fresh random
   // offset each frame so the noise moves from frame to frame without a random draw per pixel.
   const rand = mulberry32(seed * 7919 + 1);
@@ -470,21 +556,24 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
 
   const frames: TruthFrame[] = [];
   const frame = new Uint8ClampedArray(scene.rgb.length);
+  const canvas = pan ? new Uint8ClampedArray(world.rgb.length) : frame;
   const subSamples = exposure > 0 ? 9 : 1;
   const frameInterval = 1 / captureFps;
   let flicker = 0;
   for (let i = 0; i < frameCount; i++) {
     const t = filmedAt(i);
-    frame.set(scene.rgb);
-    if (clutter) paintWalker(frame, width, height, groundY, t, durationS);
+    canvas.set(world.rgb);
+    if (clutter) paintWalker(canvas, worldW, worldH, y0 + groundY, t, durationS);
     const centres: Array<[number, number]> = [];
     for (let s = 0; s < subSamples; s++) {
       const dt = subSamples === 1 ? 0 : (s / (subSamples - 1) - 0.5) * exposure * frameInterval;
       centres.push(centreAt(t + dt));
     }
-    paintBall(frame, width, height, centres, radius);
-    const box = occluderAt(spec, centreAt, groundY, t);
-    if (box) paintOccluder(frame, width, height, box);
+    paintBall(canvas, worldW, worldH, centres, radius);
+    const box = occluderAt(spec, centreAt, y0 + groundY, t);
+    if (box) paintOccluder(canvas, worldW, worldH, box);
+    const cam = cameraAt(t);
+    if (pan) resample(canvas, worldW, worldH, frame, width, height, cam, x0, y0);
     flicker = Math.max(-2, Math.min(2, flicker + (rand() - 0.5)));
     const offset = Math.floor(rand() * noiseLen);
     const mask = noiseLen - 1;
@@ -496,9 +585,10 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
       frame[p + 2] = frame[p + 2]! + nv;
     }
     await write(frame);
-    const [x, y] = centreAt(t);
+    const [wx, wy] = centreAt(t);
+    const [x, y] = pan ? toFrame(cam, wx, wy) : [wx, wy];
     const sinceLaunch = t - launchT;
-    const occluded = diskTouches(box, x, y, radius);
+    const occluded = diskTouches(box, wx, wy, radius);
     frames.push({
       frame: i,
       t,
@@ -506,7 +596,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
       y,
       visible: !occluded && x - radius >= 0 && y - radius >= 0 && x + radius <= width && y + radius <= height,
       occluded,
-      outOfView: diskInside(box, x, y, radius) || x + radius <= 0 || y + radius <= 0 || x - radius >= width || y - radius >= height,
+      ...(pan ? { xRef: wx - x0, yRef: wy - y0, camera: cam } : {}),
+      outOfView: diskInside(box, wx, wy, radius) || x + radius <= 0 || y + radius <= 0 || x - radius >= width || y - radius >= height,
       airborne: sinceLaunch > 0 && (flight.landingT === null || sinceLaunch < flight.landingT),
     });
   }
