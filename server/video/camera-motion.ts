@@ -244,6 +244,8 @@ function countInliers(matches: Array<{ x: number; y: number; u: number; v: numbe
  */
 export class CameraTracker {
   private key: { data: Uint8Array; toRef: Rigid } | null = null;
+  /** The frame before, for a second try when the key frame cannot be matched. */
+  private prev: { data: Uint8Array; toRef: Rigid } | null = null;
   /** Motion from the key frame to the latest frame. */
   private fromKey: Rigid = IDENTITY;
   private lastStep: Rigid = IDENTITY;
@@ -261,22 +263,35 @@ export class CameraTracker {
   push(frame: Uint8Array, exclude: StepOptions['exclude'] = []): { toRef: Rigid; inliers: number } {
     if (!this.key) {
       this.key = { data: Uint8Array.from(frame), toRef: IDENTITY };
+      this.prev = { data: Uint8Array.from(frame), toRef: IDENTITY };
       return { toRef: IDENTITY, inliers: Infinity };
     }
     // Guess: the motion so far from the key frame, plus the last step once more.
     const guess = composeRigid(this.lastStep, this.fromKey);
     const toKey = invertRigid(guess);
     const keyExclude = exclude.map((d) => ({ ...applyRigid(toKey, d.x, d.y), r: d.r }));
-    const step = estimateCameraStep(this.key.data, frame, this.width, this.height, { guess, exclude: keyExclude });
-    const found: Rigid = step.patches > 0 ? step : guess;
+    let step = estimateCameraStep(this.key.data, frame, this.width, this.height, { guess, exclude: keyExclude });
+    let found: Rigid = step.inliers >= 6 ? step : guess;
+    let toRef = composeRigid(this.key.toRef, invertRigid(found));
+    if (step.inliers < 6 && this.prev) {
+      // The key frame could not be matched: try the frame before, one step back.
+      const retry = estimateCameraStep(this.prev.data, frame, this.width, this.height, { guess: this.lastStep, exclude });
+      if (retry.inliers >= step.inliers) {
+        step = retry;
+        toRef = composeRigid(this.prev.toRef, invertRigid(retry.inliers >= 6 ? retry : this.lastStep));
+        found = invertRigid(composeRigid(invertRigid(this.key.toRef), toRef));
+      }
+    }
     this.lastStep = composeRigid(found, invertRigid(this.fromKey));
     this.fromKey = found;
-    const toRef = composeRigid(this.key.toRef, invertRigid(found));
     const moved = Math.hypot(found.tx, found.ty) + Math.abs(found.rotRad) * this.width;
     if (moved > this.width / 5 || step.inliers < 12) {
       this.key = { data: Uint8Array.from(frame), toRef };
       this.fromKey = IDENTITY;
     }
+    if (this.prev) this.prev.data.set(frame);
+    else this.prev = { data: Uint8Array.from(frame), toRef };
+    this.prev.toRef = toRef;
     return { toRef, inliers: step.inliers };
   }
 }

@@ -8,9 +8,10 @@
  * window of them is kept (past frames for the background, a look-ahead of future ones).
  */
 import { cancelledError, VideoError } from './errors';
-import { detectBall, medianBackground, roiAround, type Detection } from './detect';
+import { detectBall, medianBackground, roiAround, type Detection, type Roi } from './detect';
 import { openSource } from './frame-stream';
 import { fitBallistic, type BallisticPath } from './ballistic';
+import { applyRigid, CameraTracker, composeRigid, IDENTITY, invertRigid, type Rigid } from './camera-motion';
 import { fitMotion, predictAt, velocityAt, type MotionFit, type MotionPoint } from './motion';
 import type { FollowOptions, FollowPoint, FollowResult, FollowSource, FollowStart, FollowStopReason } from './types';
 
@@ -56,6 +57,43 @@ interface TrackerConfig {
 
 type FrameBuffer = Map<number, Buffer>;
 
+interface Point2 {
+  x: number;
+  y: number;
+}
+
+/**
+ * Each frame's map to the reference frame's pixels (the start frame), from the camera's motion;
+ * null when the camera is taken to be still (every map is the identity).
+ */
+class CameraMaps {
+  private readonly toFirst = new Map<number, Rigid>();
+  private base: Rigid | null = null;
+  private newest = -1;
+
+  constructor(
+    private readonly tracker: CameraTracker,
+    private readonly refFrame: number,
+  ) {}
+
+  push(index: number, data: Uint8Array): void {
+    this.toFirst.set(index, this.tracker.push(data).toRef);
+    this.newest = Math.max(this.newest, index);
+    if (index === this.refFrame) this.base = invertRigid(this.toFirst.get(index)!);
+  }
+
+  /** Frame k → reference; frames not read yet keep the newest known map (the camera is taken to stop). */
+  toRef(k: number): Rigid {
+    const m = this.toFirst.get(k) ?? this.toFirst.get(this.newest) ?? IDENTITY;
+    return this.base ? composeRigid(this.base, m) : m;
+  }
+
+  /** Every map found, frame by frame, from the reference frame on. */
+  all(): Array<{ frame: number } & Rigid> {
+    return [...this.toFirst.keys()].sort((a, b) => a - b).map((frame) => ({ frame, ...this.toRef(frame) }));
+  }
+}
+
 class Tracker {
   readonly points: MotionPoint[] = [];
   private readonly byFrame = new Map<number, MotionPoint>();
@@ -78,8 +116,69 @@ class Tracker {
   private pathPoints = -1;
   framesExamined = 0;
 
-  constructor(private readonly cfg: TrackerConfig) {
+  constructor(
+    private readonly cfg: TrackerConfig,
+    private readonly camera: CameraMaps | null = null,
+  ) {
     this.radius = cfg.radius;
+  }
+
+  /** Frame k's pixels → the reference frame's (the track's coordinates). */
+  private toRef(k: number, p: Point2): Point2 {
+    return this.camera ? applyRigid(this.camera.toRef(k), p.x, p.y) : p;
+  }
+
+  /** The reference frame's pixels → frame k's (where the ball is looked for). */
+  fromRef(k: number, p: Point2): Point2 {
+    return this.camera ? applyRigid(invertRigid(this.camera.toRef(k)), p.x, p.y) : p;
+  }
+
+  /**
+   * Background of the window `roi` of frame k from other frames: their per-pixel median. With a
+   * moving camera each sample is first taken at the same place of the scene (its pixels mapped
+   * through the reference frame); a pixel out of a sample's view takes frame k's own value.
+   */
+  private background(buffer: FrameBuffer, samples: number[], k: number, roi: Roi): Uint8Array {
+    const { width, height } = this.cfg;
+    const rw = roi.x1 - roi.x0;
+    const rh = roi.y1 - roi.y0;
+    const bg = new Uint8Array(rw * rh);
+    if (!this.camera) {
+      medianBackground(samples.map((j) => buffer.get(j)!), width, roi, bg);
+      return bg;
+    }
+    const own = buffer.get(k)!;
+    const toK = this.camera.toRef(k);
+    const warped = samples.map((j) => {
+      const src = buffer.get(j)!;
+      const m = composeRigid(invertRigid(this.camera!.toRef(j)), toK);
+      const c = Math.cos(m.rotRad);
+      const s = Math.sin(m.rotRad);
+      const out = new Uint8Array(rw * rh);
+      let o = 0;
+      for (let y = roi.y0; y < roi.y1; y++) {
+        for (let x = roi.x0; x < roi.x1; x++) {
+          // Pixel centre (x + ½, y + ½) in frame j, back to array indices (− ½).
+          const qx = c * (x + 0.5) - s * (y + 0.5) + m.tx - 0.5;
+          const qy = s * (x + 0.5) + c * (y + 0.5) + m.ty - 0.5;
+          const ix = Math.floor(qx);
+          const iy = Math.floor(qy);
+          if (ix < 0 || iy < 0 || ix + 1 >= width || iy + 1 >= height) {
+            out[o++] = own[y * width + x]!;
+            continue;
+          }
+          const fx = qx - ix;
+          const fy = qy - iy;
+          const p = iy * width + ix;
+          const a = src[p]! + (src[p + 1]! - src[p]!) * fx;
+          const b = src[p + width]! + (src[p + width + 1]! - src[p + width]!) * fx;
+          out[o++] = Math.round(a + (b - a) * fy);
+        }
+      }
+      return out;
+    });
+    medianBackground(warped, rw, { x0: 0, y0: 0, x1: rw, y1: rh }, bg);
+    return bg;
   }
 
   get radiusPx(): number {
@@ -145,10 +244,11 @@ class Tracker {
         const base = recent.length < 4 ? Math.max(4, 0.8 * r, 0.35 * speed) : Math.max(2.5, 0.8 * r, 4 * f.rms);
         gate = base + gap * Math.max(1.5, 0.15 * speed) + 0.02 * gap * gap;
       }
-      if (pred.x < -0.5 * r || pred.x > width + 0.5 * r || pred.y < -0.5 * r || pred.y > height + 0.5 * r) {
+      const seen = this.fromRef(k, pred);
+      if (seen.x < -0.5 * r || seen.x > width + 0.5 * r || seen.y < -0.5 * r || seen.y > height + 0.5 * r) {
         // Out of the picture: no point, no guess. Wait for the ball while its path comes back in.
         const along = path ?? this.ballistic(active);
-        const returns = along ? this.reenters(along, k) : pred.y < 0 && pred.x >= 0 && pred.x <= width;
+        const returns = along ? this.reenters(along, k) : seen.y < 0 && seen.x >= 0 && seen.x <= width;
         if (!returns) return 'left-frame';
         this.coast++;
         return this.coast > this.cfg.maxCoast ? 'left-frame' : null;
@@ -166,12 +266,15 @@ class Tracker {
       centre = { x: (pred.x + last.x) / 2, y: (pred.y + last.y) / 2 };
       reach = gate + Math.hypot(pred.x - last.x, pred.y - last.y) / 2;
     }
-    const det = this.detectAt(k, buffer, centre, reach, pred, r, predict);
-    const confidence = det ? this.confidence(det, pred, gate, r) : 0;
-    if (!det || confidence < FOLLOW_DEFAULTS.minConfidence) {
+    const predK = this.fromRef(k, pred);
+    const found = this.detectAt(k, buffer, this.fromRef(k, centre), reach, predK, r, predict);
+    const confidence = found ? this.confidence(found, predK, gate, r) : 0;
+    if (!found || confidence < FOLLOW_DEFAULTS.minConfidence) {
       this.lost++;
       return this.lost > this.cfg.maxLost ? 'lost' : null;
     }
+    // From here on the detection is in the track's coordinates.
+    const det = { ...found, ...this.toRef(k, found) };
     if (descending && fit) {
       // Landed or bounced: the ball stops short of the path, above it (y is down), or all but
       // stops where the path says it should still be moving.
@@ -232,8 +335,7 @@ class Tracker {
           .sort((a, b) => Math.abs(a - k) - Math.abs(b - k));
         const picked = spread(frames, FOLLOW_DEFAULTS.backgroundSamples);
         if (picked.length < 3) continue;
-        const bg = new Uint8Array((roi.x1 - roi.x0) * (roi.y1 - roi.y0));
-        medianBackground(picked.map((j) => buffer.get(j)!), width, roi, bg);
+        const bg = this.background(buffer, picked, k, roi);
         const det = detectBall(frame, bg, width, roi, { x: this.cfg.click.x, y: this.cfg.click.y, gate, radius: r0 });
         if (!det) continue;
         const score = (det.contrast / det.noise) * (1 - (0.5 * det.distance) / gate);
@@ -243,11 +345,11 @@ class Tracker {
     if (best) {
       if (best.set === 'future') this.untrustedBefore = k;
       const conf = this.confidence(best.det, this.cfg.click, gate, this.radius ?? best.det.minorRadius);
-      this.accept(k, best.det, Math.max(conf, FOLLOW_DEFAULTS.minConfidence));
+      this.accept(k, { ...best.det, ...this.toRef(k, best.det) }, Math.max(conf, FOLLOW_DEFAULTS.minConfidence));
     } else {
       // Nothing stands out at the click: keep the coach's point, with no confidence, and look on.
       this.untrustedBefore = k;
-      const point = { frame: k, x: this.cfg.click.x, y: this.cfg.click.y, weight: 0.0025 };
+      const point = { frame: k, ...this.toRef(k, this.cfg.click), weight: 0.0025 };
       this.points.push(point);
       this.byFrame.set(k, point);
       this.conf.set(k, 0);
@@ -268,6 +370,7 @@ class Tracker {
     const roi = roiAround(centre.x, centre.y, reach + 2 * r + 3, width, height);
     if (!frame || !roi) return null;
     const exclusion = reach + 2 * r + 2;
+    const centreRef = this.toRef(k, centre);
     const firstTracked = this.points[0]?.frame ?? k;
     const cleanPast: number[] = [];
     const cleanAhead: number[] = [];
@@ -277,7 +380,7 @@ class Tracker {
       let pos: { x: number; y: number } | null = this.byFrame.get(j) ?? null;
       if (!pos && predict && j >= firstTracked) pos = predict(j);
       if (pos) {
-        if (Math.hypot(pos.x - centre.x, pos.y - centre.y) > exclusion) (j < k ? cleanPast : cleanAhead).push(j);
+        if (Math.hypot(pos.x - centreRef.x, pos.y - centreRef.y) > exclusion) (j < k ? cleanPast : cleanAhead).push(j);
       } else if (Math.abs(j - k) >= FOLLOW_DEFAULTS.unknownOffset && j > this.untrustedBefore) {
         unknown.push(j);
       }
@@ -292,13 +395,7 @@ class Tracker {
     if (samples.length < 5) samples.push(...cleanAhead.sort(byNearness).slice(0, want - samples.length));
     if (samples.length < 5) samples.push(...spread(unknown.sort(byNearness), want - samples.length));
     if (samples.length < 3) return null;
-    const bg = new Uint8Array((roi.x1 - roi.x0) * (roi.y1 - roi.y0));
-    medianBackground(
-      samples.map((j) => buffer.get(j)!),
-      width,
-      roi,
-      bg,
-    );
+    const bg = this.background(buffer, samples, k, roi);
     const det = detectBall(frame, bg, width, roi, { x: centre.x, y: centre.y, gate: reach, radius: this.radius, prefer: pred });
     if (!det) return null;
     return { ...det, distance: Math.hypot(det.x - pred.x, det.y - pred.y) };
@@ -334,7 +431,8 @@ class Tracker {
     const { width, height } = this.cfg;
     const r = this.radius ?? 4;
     for (let j = k + 1; j <= k + this.cfg.maxCoast; j++) {
-      const s = path.at(j);
+      const st = path.at(j);
+      const s = { ...st, ...this.fromRef(j, st) };
       if (s.x >= r && s.x <= width - r && s.y >= r && s.y <= height - r) return true;
       // Below the picture and falling, or beyond a side and moving away: it will not come back.
       if (s.y > height + r && s.vy >= 0) return false;
@@ -421,6 +519,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const sy = src.height / src.sourceHeight;
     const s = Math.sqrt(sx * sy);
     const maxLost = options.maxLostFrames ?? Math.max(FOLLOW_DEFAULTS.minLostFrames, Math.round(FOLLOW_DEFAULTS.maxLostS * fps));
+    const camera = options.camera === 'moving' ? new CameraMaps(new CameraTracker(src.width, src.height), start.frame) : null;
     const tracker = new Tracker({
       width: src.width,
       height: src.height,
@@ -430,7 +529,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
       maxLost,
       maxSpeed: (options.maxSpeedPxPerFrame ?? src.sourceWidth / 10) * s,
       maxCoast: Math.round(FOLLOW_DEFAULTS.maxCoastS * fps),
-    });
+    }, camera);
 
     const frameBytes = src.width * src.height;
     const windowFrames = Math.max(8, Math.min(80, Math.floor((options.maxBufferBytes ?? FOLLOW_DEFAULTS.maxBufferBytes) / frameBytes)));
@@ -469,6 +568,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const readLast = lastFrame === null ? null : Math.min(src.frameCount - 1, lastFrame + ahead);
     for await (const f of src.read(first, readLast, options.signal, pool)) {
       buffer.set(f.index, f.data);
+      camera?.push(f.index, f.data);
       newest = f.index;
       advance(Math.min(f.index - ahead, lastFrame ?? Infinity), Math.min(f.index, lastFrame ?? Infinity));
       if (stopped) break;
@@ -485,13 +585,18 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const times = options.frameTimesS ?? src.frameTimesS;
     const timeScale = options.captureFps ? src.timestampRate / options.captureFps : 1;
     const timeOf = (frame: number): number => (times && times[frame] !== undefined ? (times[frame]! - times[0]!) * timeScale : frame / fps);
-    const points: FollowPoint[] = tracker.points.map((p) => ({
+    const points: FollowPoint[] = tracker.points.map((p) => {
+      const own = tracker.fromRef(p.frame, p);
+      return {
       frame: p.frame,
       t: timeOf(p.frame),
-      x: p.x / sx,
-      y: p.y / sy,
+      x: own.x / sx,
+      y: own.y / sy,
+      xRef: p.x / sx,
+      yRef: p.y / sy,
       confidence: Math.round(tracker.confidenceOf(p.frame) * 1000) / 1000,
-    }));
+      };
+    });
     const outOfView: FollowResult['outOfView'] = [];
     for (let i = 1; i < points.length; i++) {
       const from = points[i - 1]!.frame + 1;
@@ -500,6 +605,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     return {
       points,
       outOfView,
+      camera: camera ? camera.all().map((m) => ({ frame: m.frame, rotRad: m.rotRad, tx: m.tx / sx, ty: m.ty / sy })) : null,
       stoppedBecause: stopped ?? 'end-of-clip',
       radiusPx: tracker.radiusPx / s,
       captureFps: fps,

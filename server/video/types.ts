@@ -161,6 +161,11 @@ export interface FollowOptions {
   endFrame?: number;
   /** Largest expected ball speed in pixels per frame, bounding the first search. Default: a tenth of the frame width. */
   maxSpeedPxPerFrame?: number;
+  /**
+   * `still` (default): the camera did not move. `moving`: the camera's motion is estimated from the
+   * background (camera-motion.ts) and the track is followed in the start frame's coordinates.
+   */
+  camera?: 'still' | 'moving';
   /** Memory for buffered frames, bytes. Default 96 MiB (about 48 frames of 1080p gray). */
   maxBufferBytes?: number;
   /**
@@ -182,6 +187,9 @@ export interface FollowPoint {
   y: number;
   /** 0–1: contrast against the background, agreement with the predicted path and with the ball's size. */
   confidence: number;
+  /** The same point in the reference frame's pixels (the start frame; equal to x, y with a still camera). */
+  xRef: number;
+  yRef: number;
 }
 
 export type FollowStopReason =
@@ -203,6 +211,11 @@ export interface FollowResult {
    * of the picture, hidden, or not found): they have no point, and no position is guessed for them.
    */
   outOfView: Array<{ fromFrame: number; toFrame: number }>;
+  /**
+   * With `camera: 'moving'`: each frame's map to the reference frame's pixels (ref = R(rotRad)·p +
+   * (tx, ty), p from the top-left corner); null with a still camera.
+   */
+  camera: Array<{ frame: number; rotRad: number; tx: number; ty: number }> | null;
   /** Measured (or given) ball radius in pixels. */
   radiusPx: number;
   captureFps: number;

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { applyRigid, CameraTracker, composeRigid, fitRigid, invertRigid, type Rigid } from '../../../server/video/camera-motion';
 import { openSource } from '../../../server/video/frame-stream';
+import { followBall } from '../../../server/video/index';
 import type { FlightClipSpec, TruthFrame } from '../../../server/video/synth';
 import { CLIP_SPECS, testClip } from '../../support/clips/index';
 
@@ -75,5 +76,34 @@ describe('CameraTracker', () => {
       expect(Math.hypot(a.x - b.x, a.y - b.y)).toBeLessThan(2);
     }
     expect(Math.abs(truth.tx)).toBeGreaterThan(300);
+  });
+});
+
+describe('followBall with a moving camera', () => {
+  it('follows the ball of a panning clip in each frame and gives the track in the start frame\'s pixels within 2 px median', async () => {
+    const clip = await testClip('panning', CLIP_SPECS.panning as FlightClipSpec);
+    const { width, height, frames } = clip.truth;
+    const start = frames[clip.truth.launchFrame + 2]!;
+    const result = await followBall(clip.videoPath, { frame: start.frame, x: start.x + 1.5, y: start.y - 1 }, { captureFps: 60, camera: 'moving' });
+    // The truth's reference is frame 0; the follower's is the start frame.
+    const toStart = invertRigid(trueMap(start, width, height));
+    const seen = frames.filter((f) => f.frame >= start.frame && f.visible && f.airborne);
+    const byFrame = new Map(result.points.map((p) => [p.frame, p]));
+    const own: number[] = [];
+    const ref: number[] = [];
+    for (const f of seen) {
+      const p = byFrame.get(f.frame);
+      if (!p) continue;
+      own.push(Math.hypot(p.x - f.x, p.y - f.y));
+      const r = applyRigid(toStart, f.xRef!, f.yRef!);
+      ref.push(Math.hypot(p.xRef - r.x, p.yRef - r.y));
+    }
+    const median = (v: number[]): number => [...v].sort((a, b) => a - b)[v.length >> 1]!;
+    expect(own.length / seen.length).toBeGreaterThanOrEqual(0.95);
+    expect(median(own)).toBeLessThanOrEqual(1.5);
+    expect(median(ref)).toBeLessThanOrEqual(2);
+    expect(result.camera).not.toBeNull();
+    const lastMap = result.camera![result.camera!.length - 1]!;
+    expect(lastMap.tx).toBeGreaterThan(300);
   });
 });
