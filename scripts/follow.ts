@@ -1,19 +1,22 @@
 /**
- * `npm run --silent follow -- CLIP --from FRAME,X,Y [--fps CAPTURE_RATE] [--radius PX]`
+ * `npm run --silent follow -- CLIP --from FRAME,X,Y [--fps CAPTURE_RATE] [--radius PX] [--moving-camera]`
  *
  * Follows the ball from one click and prints the track as CSV on stdout:
- * `frame,t,x_px,y_px,confidence`, one row per followed frame starting with the start frame.
- * Pixels from the top-left corner of the displayed picture, y down; t in seconds from frame 0 at
- * the capture rate. Exit codes: 0 done, 1 the clip or the start point cannot be used (message on
+ * `frame,t,x_px,y_px,confidence,x_ref_px,y_ref_px`, one row per followed frame starting with the
+ * start frame (frames where the ball is out of view have none). Pixels from the top-left corner of
+ * the displayed picture, y down, in each frame's own picture and then in the start frame's; t in
+ * seconds from frame 0 (frame / capture rate, or from the frame's timestamp for a variable rate). Exit codes: 0 done, 1 the clip or the start point cannot be used (message on
  * stderr), 2 wrong options (usage on stderr).
  */
 import { parseArgs } from 'node:util';
 import { followBall, isVideoError } from '../server/video/index';
 
-const USAGE = `Usage: npm run --silent follow -- CLIP --from FRAME,X,Y [--fps CAPTURE_RATE] [--radius PX]
+const USAGE = `Usage: npm run --silent follow -- CLIP --from FRAME,X,Y [--fps CAPTURE_RATE] [--radius PX] [--moving-camera]
 
 Follows the ball from one click and prints its track as CSV:
-  frame,t,x_px,y_px,confidence
+  frame,t,x_px,y_px,confidence,x_ref_px,y_ref_px
+(x_px, y_px in each frame's own picture; x_ref_px, y_ref_px the same point in the start
+frame's picture, which differ when the camera moved; no row while the ball is out of view)
 
   CLIP              a video file, or a folder of JPEG/PNG frames (then --fps is required)
   --from FRAME,X,Y  the clicked frame (0-based) and the ball's centre in pixels from the
@@ -21,6 +24,8 @@ Follows the ball from one click and prints its track as CSV:
   --fps RATE        capture rate in frames per second, for t (default: the clip's own rate;
                     give it for slow-motion clips, which play back slower than they were filmed)
   --radius PX       the ball's radius in pixels, when known (default: measured)
+  --moving-camera   the camera was turned to follow the ball: estimate its motion from
+                    the background (default: the camera was still)
   -h, --help        show this help
 
 Exit status: 0 done, 1 the clip or the start point cannot be used, 2 wrong options.
@@ -48,6 +53,7 @@ async function main(): Promise<void> {
         from: { type: 'string' },
         fps: { type: 'string' },
         radius: { type: 'string' },
+        'moving-camera': { type: 'boolean' },
         help: { type: 'boolean', short: 'h' },
       },
     });
@@ -73,9 +79,12 @@ async function main(): Promise<void> {
   const radius = values.radius === undefined ? undefined : positiveNumber(values.radius, '--radius');
 
   try {
-    const result = await followBall(positionals[0]!, { frame, x, y, radius }, { captureFps: fps });
-    const lines = ['frame,t,x_px,y_px,confidence'];
-    for (const p of result.points) lines.push(`${p.frame},${p.t.toFixed(6)},${p.x.toFixed(3)},${p.y.toFixed(3)},${p.confidence.toFixed(3)}`);
+    const camera = values['moving-camera'] ? 'moving' : 'still';
+    const result = await followBall(positionals[0]!, { frame, x, y, radius }, { captureFps: fps, camera });
+    const lines = ['frame,t,x_px,y_px,confidence,x_ref_px,y_ref_px'];
+    for (const p of result.points) {
+      lines.push(`${p.frame},${p.t.toFixed(6)},${p.x.toFixed(3)},${p.y.toFixed(3)},${p.confidence.toFixed(3)},${p.xRef.toFixed(3)},${p.yRef.toFixed(3)}`);
+    }
     process.stdout.write(`${lines.join('\n')}\n`);
     process.stderr.write(`follow: ${result.points.length} frames followed; stopped: ${result.stoppedBecause}.\n`);
   } catch (err) {

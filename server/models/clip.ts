@@ -47,6 +47,12 @@ export class Clip extends Model<InferAttributes<Clip>, InferCreationAttributes<C
   /** printf-style name of the extracted frame files, e.g. `frame-%06d.jpg`; the number is the 0-based frame index. */
   declare frameNamePattern: string | null;
   declare strip: StoredStrip | null;
+  /** A variable-rate clip's frame presentation times (seconds at the playback rate from frame 0); null for a constant rate. */
+  declare frameTimes: CreationOptional<number[] | null>;
+  /** The rate those timestamps count in (the stream's nominal rate). */
+  declare timestampRate: CreationOptional<number | null>;
+  /** What the upload found odd about the timestamps (jumps, repeats), in words for the coach. */
+  declare timestampWarning: CreationOptional<string | null>;
   declare status: CreationOptional<ClipStatus>;
   declare failureReason: string | null;
   declare createdAt: CreationOptional<Date>;
@@ -78,6 +84,9 @@ export function initClip(sequelize: Sequelize): typeof Clip {
       framesReady: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       frameNamePattern: { type: DataTypes.STRING(80), allowNull: true },
       strip: jsonText<StoredStrip>('strip', { allowNull: true }),
+      frameTimes: jsonText<number[]>('frameTimes', { allowNull: true, long: true }),
+      timestampRate: { type: DataTypes.DOUBLE, allowNull: true },
+      timestampWarning: { type: DataTypes.TEXT, allowNull: true },
       status: { type: DataTypes.ENUM('processing', 'ready', 'failed'), allowNull: false, defaultValue: 'processing' },
       failureReason: { type: DataTypes.TEXT, allowNull: true },
       createdAt: DataTypes.DATE,

@@ -88,6 +88,8 @@ export async function toClipDtos(club: ClubContext, clips: Clip[]): Promise<Clip
       slowMotion: clip.slowMotion,
       frameCount: clip.frameCount ?? null,
       durationS: clip.frameCount ? clip.frameCount / clip.captureFps : null,
+      variableFrameRate: Boolean(clip.frameTimes),
+      timestampWarning: clip.timestampWarning ?? null,
       status: clip.status,
       failureReason: clip.failureReason ?? null,
       job: job ? (toJobSummary(job) as JobSummary) : null,
@@ -200,7 +202,8 @@ export async function acceptUpload(club: ClubContext, sessionId: number, upload:
       } catch (err) {
         throw uploadRefusal(err, 'video') ?? err;
       }
-      const captureFps = fields.captureFps ?? probe.frameRate;
+      // A variable-rate clip's timestamps count in its nominal rate: that is its capture rate unless the coach says otherwise.
+      const captureFps = fields.captureFps ?? (probe.constantFrameRate ? probe.frameRate : probe.nominalFrameRate);
       return await keep(club, session.id, {
         kind: 'video',
         label: fields.label || file.originalName,
@@ -215,6 +218,7 @@ export async function acceptUpload(club: ClubContext, sessionId: number, upload:
         captureFps,
         slowMotion: Boolean(fields.slowMotion),
         frameCount: probe.frameCount,
+        timing: { frameTimes: probe.frameTimesS, timestampRate: probe.nominalFrameRate, warning: probe.timestampWarning },
         files: [{ from: file.path, name: `video${VIDEO_EXTENSIONS[probe.container] ?? extname(file.originalName)}` }],
       });
     }
@@ -289,6 +293,8 @@ interface KeepInput {
   captureFps: number;
   slowMotion: boolean;
   frameCount: number;
+  /** A variable-rate video's frame timestamps, their rate and what is odd about them (see ClipProbe). */
+  timing?: { frameTimes: number[] | null; timestampRate: number | null; warning: string | null };
   files: { from: string; name: string }[];
 }
 
@@ -314,6 +320,9 @@ async function keep(club: ClubContext, sessionId: number, input: KeepInput) {
           captureFps: input.captureFps,
           slowMotion: input.slowMotion,
           frameCount: input.frameCount,
+          frameTimes: input.timing?.frameTimes ?? null,
+          timestampRate: input.timing?.frameTimes ? input.timing.timestampRate : null,
+          timestampWarning: input.timing?.warning ?? null,
           frameWidth: null,
           frameHeight: null,
           frameNamePattern: null,

@@ -10,6 +10,7 @@ import { JobFailure } from '../jobs/types';
 import { Clip, Flight, Session, TrackPoint, type Calibration } from '../models';
 import { resolveFlightBall } from './balls';
 import { currentCalibration, frameOf } from './calibration';
+import { frameTimer } from './frame-times';
 import { conditionsOf } from './sessions';
 
 /** A session's weather as the engine reads it (the stored SI values); null when nothing is known. */
@@ -78,9 +79,10 @@ export async function loadFitInput(flightId: number): Promise<FitInput> {
   }
   const frame = frameOf(calibration);
   const track: FitInput['track'] = { t: [], x: [], y: [] };
+  const timeOf = frameTimer(clip);
   for (const p of points) {
     const m = pixelToMetres(frame, { xPx: p.xPx, yPx: p.yPx });
-    track.t.push(p.frame / clip.captureFps);
+    track.t.push(timeOf(p.frame));
     track.x.push(m.xM);
     track.y.push(m.yM);
   }

@@ -19,13 +19,15 @@ import type { ClubContext } from '../http/types';
 import { enqueue } from '../jobs/queue';
 import { Calibration, Clip, Flight, TrackPoint } from '../models';
 import { currentCalibration, frameOf } from './calibration';
+import { frameAtTime, frameTimer } from './frame-times';
 import { toJobDto } from './jobs';
 import { findVisibleFlightWithClip } from './visibility';
 
-/** A flight's points as the API shows them: t = frame / captureFps; metres when the clip is calibrated. */
+/** A flight's points as the API shows them: t from the frame (frameTimer); metres when the clip is calibrated. */
 export async function pointsOf(flight: Flight, clip: Clip, cal: Calibration | null, transaction?: Transaction): Promise<TrackPointDto[]> {
   const points = await TrackPoint.findAll({ where: { flightId: flight.id }, order: [['frame', 'ASC']], transaction });
   const frame = cal ? frameOf(cal) : null;
+  const timeOf = frameTimer(clip);
   return points.map((p) => {
     const m = frame ? pixelToMetres(frame, { xPx: p.xPx, yPx: p.yPx }) : null;
     return {
@@ -35,7 +37,7 @@ export async function pointsOf(flight: Flight, clip: Clip, cal: Calibration | nu
       radiusPx: p.radiusPx ?? null,
       source: p.source,
       confidence: p.confidence ?? null,
-      tS: p.frame / clip.captureFps,
+      tS: timeOf(p.frame),
       xM: m ? m.xM : null,
       yM: m ? m.yM : null,
     };
@@ -145,7 +147,7 @@ export async function importCsv(club: ClubContext, flightId: number, text: strin
       const frame = frameOf(cal);
       for (const r of parsed.rows) {
         const p = metresToPixel(frame, { xM: r.xM, yM: r.yM });
-        rows.push({ line: r.line, column: 't', point: { frame: Math.round(r.tS * clip.captureFps), xPx: p.xPx, yPx: p.yPx, source: 'manual' } });
+        rows.push({ line: r.line, column: 't', point: { frame: frameAtTime(clip, r.tS), xPx: p.xPx, yPx: p.yPx, source: 'manual' } });
       }
     }
     const seen = new Map<number, number>();

@@ -24,6 +24,8 @@ export const VIDEO_ERROR_CODES = {
   VIDEO_NO_DECODABLE_STREAM: 'UNSUPPORTED_MEDIA',
   /** ffprobe or ffmpeg failed for a reason not covered above; the message carries ffmpeg's last line. */
   VIDEO_DECODE_FAILED: 'UNPROCESSABLE',
+  /** A frame's presentation timestamp goes back in time: the frames' order and times cannot be known. */
+  VIDEO_TIMESTAMPS_BACKWARDS: 'UNPROCESSABLE',
   /** ffmpeg or ffprobe is missing at FFMPEG_PATH / FFPROBE_PATH. */
   VIDEO_TOOL_MISSING: 'INTERNAL',
   /** A frame set with no frames, a bad capture rate or frames of different sizes or types. */

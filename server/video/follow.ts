@@ -8,8 +8,10 @@
  * window of them is kept (past frames for the background, a look-ahead of future ones).
  */
 import { cancelledError, VideoError } from './errors';
-import { detectBall, medianBackground, roiAround, type Detection } from './detect';
+import { detectBall, medianBackground, roiAround, type Detection, type Roi } from './detect';
 import { openSource } from './frame-stream';
+import { fitBallistic, type BallisticPath } from './ballistic';
+import { applyRigid, CameraTracker, composeRigid, IDENTITY, invertRigid, type Rigid } from './camera-motion';
 import { fitMotion, predictAt, velocityAt, type MotionFit, type MotionPoint } from './motion';
 import type { FollowOptions, FollowPoint, FollowResult, FollowSource, FollowStart, FollowStopReason } from './types';
 
@@ -29,10 +31,17 @@ export const FOLLOW_DEFAULTS = {
   backgroundSamples: 9,
   /** Frames between the current frame and a background sample whose ball position is unknown. */
   unknownOffset: 6,
+  /** Longest the ball may go unseen inside the picture (hidden behind someone) before following stops: seconds, and frames at least. */
+  maxLostS: 0.3,
+  minLostFrames: 8,
   /** Detections below this confidence count as misses. */
   minConfidence: 0.2,
-  /** Frames the ball may spend above the top edge (a high kick) before the follower gives up: seconds. */
+  /** Longest the ball may stay out of the picture (a high kick over the top) and still be waited for: seconds. */
   maxCoastS: 3,
+  /** Frames missing between two points after which the short-range fit starts afresh from the later one. */
+  segmentGap: 3,
+  /** Points after a gap before the short-range fit takes over again from the flight's physics. */
+  segmentPoints: 4,
 } as const;
 
 interface TrackerConfig {
@@ -47,6 +56,43 @@ interface TrackerConfig {
 }
 
 type FrameBuffer = Map<number, Buffer>;
+
+interface Point2 {
+  x: number;
+  y: number;
+}
+
+/**
+ * Each frame's map to the reference frame's pixels (the start frame), from the camera's motion;
+ * null when the camera is taken to be still (every map is the identity).
+ */
+class CameraMaps {
+  private readonly toFirst = new Map<number, Rigid>();
+  private base: Rigid | null = null;
+  private newest = -1;
+
+  constructor(
+    private readonly tracker: CameraTracker,
+    private readonly refFrame: number,
+  ) {}
+
+  push(index: number, data: Uint8Array): void {
+    this.toFirst.set(index, this.tracker.push(data).toRef);
+    this.newest = Math.max(this.newest, index);
+    if (index === this.refFrame) this.base = invertRigid(this.toFirst.get(index)!);
+  }
+
+  /** Frame k → reference; frames not read yet keep the newest known map (the camera is taken to stop). */
+  toRef(k: number): Rigid {
+    const m = this.toFirst.get(k) ?? this.toFirst.get(this.newest) ?? IDENTITY;
+    return this.base ? composeRigid(this.base, m) : m;
+  }
+
+  /** Every map found, frame by frame, from the reference frame on. */
+  all(): Array<{ frame: number } & Rigid> {
+    return [...this.toFirst.keys()].sort((a, b) => a - b).map((frame) => ({ frame, ...this.toRef(frame) }));
+  }
+}
 
 class Tracker {
   readonly points: MotionPoint[] = [];
@@ -63,10 +109,76 @@ class Tracker {
   private fitFrom = 0;
   /** Frames before the start whose ball position is unknown and must not serve as background. */
   private untrustedBefore = -1;
+  /** Index of the first point after the latest gap: the short-range fit uses points from here on. */
+  private segmentFrom = 0;
+  /** The flight's physical path fitted to the points so far; refitted after each new point when needed. */
+  private path: BallisticPath | null = null;
+  private pathPoints = -1;
   framesExamined = 0;
 
-  constructor(private readonly cfg: TrackerConfig) {
+  constructor(
+    private readonly cfg: TrackerConfig,
+    private readonly camera: CameraMaps | null = null,
+  ) {
     this.radius = cfg.radius;
+  }
+
+  /** Frame k's pixels → the reference frame's (the track's coordinates). */
+  private toRef(k: number, p: Point2): Point2 {
+    return this.camera ? applyRigid(this.camera.toRef(k), p.x, p.y) : p;
+  }
+
+  /** The reference frame's pixels → frame k's (where the ball is looked for). */
+  fromRef(k: number, p: Point2): Point2 {
+    return this.camera ? applyRigid(invertRigid(this.camera.toRef(k)), p.x, p.y) : p;
+  }
+
+  /**
+   * Background of the window `roi` of frame k from other frames: their per-pixel median. With a
+   * moving camera each sample is first taken at the same place of the scene (its pixels mapped
+   * through the reference frame); a pixel out of a sample's view takes frame k's own value.
+   */
+  private background(buffer: FrameBuffer, samples: number[], k: number, roi: Roi): Uint8Array {
+    const { width, height } = this.cfg;
+    const rw = roi.x1 - roi.x0;
+    const rh = roi.y1 - roi.y0;
+    const bg = new Uint8Array(rw * rh);
+    if (!this.camera) {
+      medianBackground(samples.map((j) => buffer.get(j)!), width, roi, bg);
+      return bg;
+    }
+    const own = buffer.get(k)!;
+    const toK = this.camera.toRef(k);
+    const warped = samples.map((j) => {
+      const src = buffer.get(j)!;
+      const m = composeRigid(invertRigid(this.camera!.toRef(j)), toK);
+      const c = Math.cos(m.rotRad);
+      const s = Math.sin(m.rotRad);
+      const out = new Uint8Array(rw * rh);
+      let o = 0;
+      for (let y = roi.y0; y < roi.y1; y++) {
+        for (let x = roi.x0; x < roi.x1; x++) {
+          // Pixel centre (x + ½, y + ½) in frame j, back to array indices (− ½).
+          const qx = c * (x + 0.5) - s * (y + 0.5) + m.tx - 0.5;
+          const qy = s * (x + 0.5) + c * (y + 0.5) + m.ty - 0.5;
+          const ix = Math.floor(qx);
+          const iy = Math.floor(qy);
+          if (ix < 0 || iy < 0 || ix + 1 >= width || iy + 1 >= height) {
+            out[o++] = own[y * width + x]!;
+            continue;
+          }
+          const fx = qx - ix;
+          const fy = qy - iy;
+          const p = iy * width + ix;
+          const a = src[p]! + (src[p + 1]! - src[p]!) * fx;
+          const b = src[p + width]! + (src[p + width + 1]! - src[p + width]!) * fx;
+          out[o++] = Math.round(a + (b - a) * fy);
+        }
+      }
+      return out;
+    });
+    medianBackground(warped, rw, { x0: 0, y0: 0, x1: rw, y1: rh }, bg);
+    return bg;
   }
 
   get radiusPx(): number {
@@ -98,6 +210,7 @@ class Tracker {
     let pred: { x: number; y: number };
     let gate: number;
     let fit: MotionFit | null = null;
+    let predict: ((j: number) => { x: number; y: number }) | null = null;
     let vy = 0;
     const atRest = !this.launched && n >= 1;
     if (n < 2 || atRest) {
@@ -105,38 +218,63 @@ class Tracker {
       pred = n >= 1 ? active[n - 1]! : this.cfg.click;
       gate = this.cfg.maxSpeed * (1 + 0.2 * this.lost);
     } else {
-      fit = fitMotion(active, FOLLOW_DEFAULTS.fitWindow, 2);
-      pred = predictAt(fit, k);
-      const v = velocityAt(fit, k);
-      vy = v.vy;
-      const speed = Math.hypot(v.vx, v.vy);
-      const base = n < 4 ? Math.max(4, 0.8 * r, 0.35 * speed) : Math.max(2.5, 0.8 * r, 4 * fit.rms);
-      const gap = k - active[n - 1]!.frame - 1;
-      gate = base + gap * Math.max(1.5, 0.15 * speed) + 0.02 * gap * gap;
-      if (pred.x < 0 || pred.x > width || pred.y > height) return 'left-frame';
-      if (pred.y < -0.5 * r) {
-        // Above the top edge: a high ball often comes back into the picture. Wait for it.
+      const recent = this.points.slice(Math.max(this.fitFrom, this.segmentFrom));
+      const last = active[n - 1]!;
+      const gap = k - last.frame - 1;
+      // Across a gap (out of the picture, hidden) and just after one, the flight's physics fitted
+      // to the whole track predicts far better than a short polynomial.
+      const path = this.lost > 0 || this.coast > 0 || recent.length < FOLLOW_DEFAULTS.segmentPoints ? this.ballistic(active) : null;
+      if (recent.length >= 2) fit = fitMotion(recent, FOLLOW_DEFAULTS.fitWindow, 2);
+      if (path) {
+        const st = path.at(k);
+        pred = st;
+        vy = st.vy;
+        predict = (j) => path.at(j);
+        const speed = Math.hypot(st.vx, st.vy);
+        const base = Math.max(2.5, 0.8 * r, 4 * path.rms);
+        gate = base + gap * Math.max(0.5, 0.05 * speed) + 0.004 * gap * gap;
+      } else {
+        fit ??= fitMotion(active, FOLLOW_DEFAULTS.fitWindow, 2);
+        const f = fit;
+        pred = predictAt(f, k);
+        predict = (j) => predictAt(f, j);
+        const v = velocityAt(f, k);
+        vy = v.vy;
+        const speed = Math.hypot(v.vx, v.vy);
+        const base = recent.length < 4 ? Math.max(4, 0.8 * r, 0.35 * speed) : Math.max(2.5, 0.8 * r, 4 * f.rms);
+        gate = base + gap * Math.max(1.5, 0.15 * speed) + 0.02 * gap * gap;
+      }
+      const seen = this.fromRef(k, pred);
+      if (seen.x < -0.5 * r || seen.x > width + 0.5 * r || seen.y < -0.5 * r || seen.y > height + 0.5 * r) {
+        // Out of the picture: no point, no guess. Wait for the ball while its path comes back in.
+        const along = path ?? this.ballistic(active);
+        const returns = along ? this.reenters(along, k) : seen.y < 0 && seen.x >= 0 && seen.x <= width;
+        if (!returns) return 'left-frame';
         this.coast++;
         return this.coast > this.cfg.maxCoast ? 'left-frame' : null;
       }
+      if (path && fit && recent.length < FOLLOW_DEFAULTS.segmentPoints) fit = null;
     }
 
     // While descending, also look back along the path to the last point: a ball that has landed
     // or bounced is found there, and that is how a landing is recognised.
     let centre = pred;
     let reach = gate;
-    const descending = fit !== null && n >= 6 && vy > Math.max(0.3, 0.03 * r);
+    const descending = fit !== null && this.lost === 0 && n >= 6 && vy > Math.max(0.3, 0.03 * r);
     if (descending) {
       const last = active[n - 1]!;
       centre = { x: (pred.x + last.x) / 2, y: (pred.y + last.y) / 2 };
       reach = gate + Math.hypot(pred.x - last.x, pred.y - last.y) / 2;
     }
-    const det = this.detectAt(k, buffer, centre, reach, pred, r, fit);
-    const confidence = det ? this.confidence(det, pred, gate, r) : 0;
-    if (!det || confidence < FOLLOW_DEFAULTS.minConfidence) {
+    const predK = this.fromRef(k, pred);
+    const found = this.detectAt(k, buffer, this.fromRef(k, centre), reach, predK, r, predict);
+    const confidence = found ? this.confidence(found, predK, gate, r) : 0;
+    if (!found || confidence < FOLLOW_DEFAULTS.minConfidence) {
       this.lost++;
       return this.lost > this.cfg.maxLost ? 'lost' : null;
     }
+    // From here on the detection is in the track's coordinates.
+    const det = { ...found, ...this.toRef(k, found) };
     if (descending && fit) {
       // Landed or bounced: the ball stops short of the path, above it (y is down), or all but
       // stops where the path says it should still be moving.
@@ -197,8 +335,7 @@ class Tracker {
           .sort((a, b) => Math.abs(a - k) - Math.abs(b - k));
         const picked = spread(frames, FOLLOW_DEFAULTS.backgroundSamples);
         if (picked.length < 3) continue;
-        const bg = new Uint8Array((roi.x1 - roi.x0) * (roi.y1 - roi.y0));
-        medianBackground(picked.map((j) => buffer.get(j)!), width, roi, bg);
+        const bg = this.background(buffer, picked, k, roi);
         const det = detectBall(frame, bg, width, roi, { x: this.cfg.click.x, y: this.cfg.click.y, gate, radius: r0 });
         if (!det) continue;
         const score = (det.contrast / det.noise) * (1 - (0.5 * det.distance) / gate);
@@ -208,11 +345,11 @@ class Tracker {
     if (best) {
       if (best.set === 'future') this.untrustedBefore = k;
       const conf = this.confidence(best.det, this.cfg.click, gate, this.radius ?? best.det.minorRadius);
-      this.accept(k, best.det, Math.max(conf, FOLLOW_DEFAULTS.minConfidence));
+      this.accept(k, { ...best.det, ...this.toRef(k, best.det) }, Math.max(conf, FOLLOW_DEFAULTS.minConfidence));
     } else {
       // Nothing stands out at the click: keep the coach's point, with no confidence, and look on.
       this.untrustedBefore = k;
-      const point = { frame: k, x: this.cfg.click.x, y: this.cfg.click.y, weight: 0.0025 };
+      const point = { frame: k, ...this.toRef(k, this.cfg.click), weight: 0.0025 };
       this.points.push(point);
       this.byFrame.set(k, point);
       this.conf.set(k, 0);
@@ -226,13 +363,14 @@ class Tracker {
     reach: number,
     pred: { x: number; y: number },
     r: number,
-    fit: MotionFit | null,
+    predict: ((j: number) => { x: number; y: number }) | null,
   ): Detection | null {
     const { width, height } = this.cfg;
     const frame = buffer.get(k);
     const roi = roiAround(centre.x, centre.y, reach + 2 * r + 3, width, height);
     if (!frame || !roi) return null;
     const exclusion = reach + 2 * r + 2;
+    const centreRef = this.toRef(k, centre);
     const firstTracked = this.points[0]?.frame ?? k;
     const cleanPast: number[] = [];
     const cleanAhead: number[] = [];
@@ -240,9 +378,9 @@ class Tracker {
     for (const j of buffer.keys()) {
       if (j === k) continue;
       let pos: { x: number; y: number } | null = this.byFrame.get(j) ?? null;
-      if (!pos && fit && j >= firstTracked) pos = predictAt(fit, j);
+      if (!pos && predict && j >= firstTracked) pos = predict(j);
       if (pos) {
-        if (Math.hypot(pos.x - centre.x, pos.y - centre.y) > exclusion) (j < k ? cleanPast : cleanAhead).push(j);
+        if (Math.hypot(pos.x - centreRef.x, pos.y - centreRef.y) > exclusion) (j < k ? cleanPast : cleanAhead).push(j);
       } else if (Math.abs(j - k) >= FOLLOW_DEFAULTS.unknownOffset && j > this.untrustedBefore) {
         unknown.push(j);
       }
@@ -257,13 +395,7 @@ class Tracker {
     if (samples.length < 5) samples.push(...cleanAhead.sort(byNearness).slice(0, want - samples.length));
     if (samples.length < 5) samples.push(...spread(unknown.sort(byNearness), want - samples.length));
     if (samples.length < 3) return null;
-    const bg = new Uint8Array((roi.x1 - roi.x0) * (roi.y1 - roi.y0));
-    medianBackground(
-      samples.map((j) => buffer.get(j)!),
-      width,
-      roi,
-      bg,
-    );
+    const bg = this.background(buffer, samples, k, roi);
     const det = detectBall(frame, bg, width, roi, { x: centre.x, y: centre.y, gate: reach, radius: this.radius, prefer: pred });
     if (!det) return null;
     return { ...det, distance: Math.hypot(det.x - pred.x, det.y - pred.y) };
@@ -285,9 +417,35 @@ class Tracker {
     return this.clarity(det, r) * (0.4 + 0.6 * cPred) * cEdge;
   }
 
+  /** The physical path fitted to the flight's points (cached until a point is added); null while too short. */
+  private ballistic(active: MotionPoint[]): BallisticPath | null {
+    if (this.pathPoints !== this.points.length) {
+      this.path = fitBallistic(active);
+      this.pathPoints = this.points.length;
+    }
+    return this.path;
+  }
+
+  /** Whether the path, out of the picture at frame k, comes back into it within the longest wait. */
+  private reenters(path: BallisticPath, k: number): boolean {
+    const { width, height } = this.cfg;
+    const r = this.radius ?? 4;
+    for (let j = k + 1; j <= k + this.cfg.maxCoast; j++) {
+      const st = path.at(j);
+      const s = { ...st, ...this.fromRef(j, st) };
+      if (s.x >= r && s.x <= width - r && s.y >= r && s.y <= height - r) return true;
+      // Below the picture and falling, or beyond a side and moving away: it will not come back.
+      if (s.y > height + r && s.vy >= 0) return false;
+      if ((s.x < -r && s.vx <= 0) || (s.x > width + r && s.vx >= 0)) return false;
+    }
+    return false;
+  }
+
   private accept(k: number, det: Detection, confidence: number): void {
     // Confidence squared: a doubtful point should hardly bend the predicted path.
     const point = { frame: k, x: det.x, y: det.y, weight: Math.max(0.0025, confidence * confidence) };
+    const previous = this.points[this.points.length - 1];
+    if (previous && k - previous.frame - 1 > FOLLOW_DEFAULTS.segmentGap) this.segmentFrom = this.points.length;
     this.points.push(point);
     this.byFrame.set(k, point);
     this.conf.set(k, confidence);
@@ -360,7 +518,8 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const sx = src.width / src.sourceWidth;
     const sy = src.height / src.sourceHeight;
     const s = Math.sqrt(sx * sy);
-    const maxLost = options.maxLostFrames ?? Math.max(5, Math.round(fps / 10));
+    const maxLost = options.maxLostFrames ?? Math.max(FOLLOW_DEFAULTS.minLostFrames, Math.round(FOLLOW_DEFAULTS.maxLostS * fps));
+    const camera = options.camera === 'moving' ? new CameraMaps(new CameraTracker(src.width, src.height), start.frame) : null;
     const tracker = new Tracker({
       width: src.width,
       height: src.height,
@@ -370,7 +529,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
       maxLost,
       maxSpeed: (options.maxSpeedPxPerFrame ?? src.sourceWidth / 10) * s,
       maxCoast: Math.round(FOLLOW_DEFAULTS.maxCoastS * fps),
-    });
+    }, camera);
 
     const frameBytes = src.width * src.height;
     const windowFrames = Math.max(8, Math.min(80, Math.floor((options.maxBufferBytes ?? FOLLOW_DEFAULTS.maxBufferBytes) / frameBytes)));
@@ -409,6 +568,7 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const readLast = lastFrame === null ? null : Math.min(src.frameCount - 1, lastFrame + ahead);
     for await (const f of src.read(first, readLast, options.signal, pool)) {
       buffer.set(f.index, f.data);
+      camera?.push(f.index, f.data);
       newest = f.index;
       advance(Math.min(f.index - ahead, lastFrame ?? Infinity), Math.min(f.index, lastFrame ?? Infinity));
       if (stopped) break;
@@ -419,15 +579,33 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
       }
       advance(Math.min(newest, lastFrame ?? Infinity), Math.min(newest, lastFrame ?? Infinity));
     }
-    const points: FollowPoint[] = tracker.points.map((p) => ({
+    // Times from the frames' own timestamps when they are not evenly spaced (playback seconds,
+    // scaled by the stream's nominal rate over the capture rate for slow motion); otherwise
+    // frame / fps exactly. Without a stated capture rate the timestamps are real time.
+    const times = options.frameTimesS ?? src.frameTimesS;
+    const timeScale = options.captureFps ? src.timestampRate / options.captureFps : 1;
+    const timeOf = (frame: number): number => (times && times[frame] !== undefined ? (times[frame]! - times[0]!) * timeScale : frame / fps);
+    const points: FollowPoint[] = tracker.points.map((p) => {
+      const own = tracker.fromRef(p.frame, p);
+      return {
       frame: p.frame,
-      t: p.frame / fps,
-      x: p.x / sx,
-      y: p.y / sy,
+      t: timeOf(p.frame),
+      x: own.x / sx,
+      y: own.y / sy,
+      xRef: p.x / sx,
+      yRef: p.y / sy,
       confidence: Math.round(tracker.confidenceOf(p.frame) * 1000) / 1000,
-    }));
+      };
+    });
+    const outOfView: FollowResult['outOfView'] = [];
+    for (let i = 1; i < points.length; i++) {
+      const from = points[i - 1]!.frame + 1;
+      if (points[i]!.frame > from) outOfView.push({ fromFrame: from, toFrame: points[i]!.frame - 1 });
+    }
     return {
       points,
+      outOfView,
+      camera: camera ? camera.all().map((m) => ({ frame: m.frame, rotRad: m.rotRad, tx: m.tx / sx, ty: m.ty / sy })) : null,
       stoppedBecause: stopped ?? 'end-of-clip',
       radiusPx: tracker.radiusPx / s,
       captureFps: fps,

@@ -32,6 +32,10 @@ export interface OpenedSource {
   /** The source's own frame rate (frame sets and extracted frames: the stated rate). */
   frameRate: number;
   frameCount: number;
+  /** Presentation times of a variable-rate video's frames (seconds at the playback rate); null otherwise. */
+  frameTimesS: number[] | null;
+  /** The rate those timestamps count in (the stream's nominal rate). */
+  timestampRate: number;
   /**
    * Streams frames `first`..`last` (inclusive; null = to the end). Buffers are taken from `pool`
    * when it has any: a caller that is done with a frame may push its buffer back for reuse.
@@ -82,6 +86,8 @@ function videoSource(probe: ClipProbe, seekAfterS: number): OpenedSource {
     sourceHeight: probe.height,
     frameRate: probe.frameRate,
     frameCount: probe.frameCount,
+    frameTimesS: probe.frameTimesS ?? null,
+    timestampRate: probe.nominalFrameRate ?? probe.frameRate,
     read(first, last, signal, pool) {
       const args = ['-nostdin', '-v', 'error'];
       let filter: string;
@@ -133,6 +139,8 @@ function imageSequence(
     sourceHeight,
     frameRate,
     frameCount,
+    frameTimesS: null,
+    timestampRate: frameRate,
     read(first, last, signal, pool) {
       // Image sequences start at any number exactly: no seeking question arises.
       const args = ['-nostdin', '-v', 'error', '-framerate', String(frameRate), '-start_number', String(first), '-i', pattern];

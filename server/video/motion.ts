@@ -80,7 +80,7 @@ export function velocityAt(fit: MotionFit, frame: number): { vx: number; vy: num
 }
 
 /** Gaussian elimination with partial pivoting; a singular system falls back to the weighted mean. */
-function solve(A: number[][], b: number[]): number[] {
+export function solve(A: number[][], b: number[]): number[] {
   const m = b.length;
   const x = [...b];
   for (let col = 0; col < m; col++) {

@@ -11,6 +11,7 @@ import { basename } from 'node:path';
 import ffmpeg from 'fluent-ffmpeg';
 import { VideoError } from './errors';
 import { readHead, sniffBytes } from './sniff';
+import { readFrameTiming } from './timestamps';
 import { configureFluentFfmpeg, ffmpegPath, ffprobePath, lastErrorLine, runTool, type RunResult } from './tools';
 import type { ClipProbe, FrameSetProbe, MediaFormat, MediaSniff } from './types';
 
@@ -57,10 +58,11 @@ export async function probeClip(path: string): Promise<ClipProbe> {
   const sizeBytes = (await stat(path)).size;
   // The three checks are independent; running them together saves a process start or two.
   // Note: a structural fault is reported first, since ffprobe's complaint about the same file is vaguer.
-  const [structure, probed, decodable] = await Promise.allSettled([
+  const [structure, probed, decodable, timed] = await Promise.allSettled([
     checkStructure(path, sniff.format, sizeBytes),
     ffprobeJson(path),
     decodeFirstFrame(path),
+    readFrameTiming(path),
   ]);
   if (structure.status === 'rejected') throw structure.reason;
   if (probed.status === 'rejected') throw probed.reason;
@@ -78,6 +80,8 @@ export async function probeClip(path: string): Promise<ClipProbe> {
   }
   if (decodable.status === 'rejected') throw decodable.reason;
   checkDecodable(path, String(video.codec_name ?? video.codec_tag_string ?? 'unknown'), decodable.value);
+  if (timed.status === 'rejected') throw timed.reason;
+  const timing = timed.value;
 
   const codedWidth = Number(video.width);
   const codedHeight = Number(video.height);
@@ -93,7 +97,7 @@ export async function probeClip(path: string): Promise<ClipProbe> {
   if (!rate) {
     throw new VideoError('VIDEO_DECODE_FAILED', 'The video states no frame rate. Export the clip again as MP4, or upload its frames with their capture rate.', { path });
   }
-  const constantFrameRate = !avg || !nominal || Math.abs(avg.value - nominal.value) <= 1e-3 * nominal.value;
+  const constantFrameRate = (!avg || !nominal || Math.abs(avg.value - nominal.value) <= 1e-3 * nominal.value) && timing.constant;
 
   const streamDuration = Number(video.duration);
   const formatDuration = Number(data.format.duration);
@@ -125,7 +129,10 @@ export async function probeClip(path: string): Promise<ClipProbe> {
     rotationDeg,
     frameRate: rate.value,
     frameRateFraction: rate.text,
+    nominalFrameRate: timing.constant ? rate.value : (nominal ?? rate).value,
     constantFrameRate,
+    frameTimesS: timing.constant ? null : timing.timesS,
+    timestampWarning: timing.warning,
     frameCount,
     frameCountSource,
     durationS,

@@ -61,19 +61,54 @@ export interface FlightClipSpec {
   keyframeIntervalS?: number;
   /** Container rotation tag, degrees clockwise (the picture is stored turned back). Default 0. */
   rotationDeg?: 0 | 90 | 180 | 270;
+  /**
+   * A person walking across in front of the ball: their body's centre passes the ball's x at
+   * `atS` seconds, walking at `speedPxPerS` (negative: to the left; default −120), `widthPx` wide
+   * (default 4 ball diameters), standing from the ground to `topMarginPx` (default 3 ball radii)
+   * above the ball at that instant. The ball is hidden wherever it overlaps them.
+   */
+  occluder?: { atS: number; widthPx?: number; speedPxPerS?: number; topMarginPx?: number };
+  /**
+   * A variable frame rate: frame i is filmed at i / captureFps + jitter·sin(i / 2) seconds (keep the
+   * jitter under a quarter of the frame interval so times stay in order), and its timestamp says
+   * so. The truth's `t` is that instant. Default 0 (a constant rate).
+   */
+  timestampJitterS?: number;
+  /**
+   * A camera turned to follow the ball: the picture is a window on a wider scene whose centre
+   * moves `panPx` to the right over the clip (eased in and out), `tiltPx` down, while the camera
+   * rolls by up to `rollDeg` (a half sine over the clip). Frame 0 is square and unmoved: it is the
+   * reference frame, and the launch point and ground are given in its pixels.
+   */
+  pan?: { panPx: number; tiltPx?: number; rollDeg?: number };
+}
+
+/** Maps a frame's pixels to the reference frame's: ref = R(rotRad)·(p − c) + c + (dx, dy), c the picture centre. */
+export interface CameraToReference {
+  dx: number;
+  dy: number;
+  rotRad: number;
 }
 
 export interface TruthFrame {
   frame: number;
-  /** Seconds at the capture rate. */
+  /** Seconds at the capture rate: the instant the frame was filmed. */
   t: number;
   /** True centre, pixels of the displayed picture. */
   x: number;
   y: number;
-  /** The whole disk is inside the picture. */
+  /** The whole disk is inside the picture and no part of it is hidden by the occluder. */
   visible: boolean;
+  /** Some part of the disk is behind the occluder (see `FlightClipSpec.occluder`). */
+  occluded: boolean;
+  /** No part of the ball can be seen: wholly outside the picture or wholly behind the occluder. */
+  outOfView: boolean;
   /** After launch and before landing. */
   airborne: boolean;
+  /** With a panning camera: the centre in the reference frame's pixels, and how this frame maps there. */
+  xRef?: number;
+  yRef?: number;
+  camera?: CameraToReference;
 }
 
 export interface FlightTruth {
@@ -269,6 +304,93 @@ function paintWalker(frame: Uint8ClampedArray, width: number, height: number, gr
   }
 }
 
+interface Occluder {
+  x0: number;
+  x1: number;
+  y0: number;
+  y1: number;
+}
+
+/** The occluding figure's box at time t, or null without one. */
+function occluderAt(spec: FlightClipSpec, centreAt: (t: number) => [number, number], groundY: number, t: number): Occluder | null {
+  const o = spec.occluder;
+  if (!o) return null;
+  const r = spec.ballRadiusPx;
+  const [bx, by] = centreAt(o.atS);
+  const w = o.widthPx ?? 8 * r;
+  const cx = bx + (o.speedPxPerS ?? -120) * (t - o.atS);
+  return { x0: cx - w / 2, x1: cx + w / 2, y0: by - r - (o.topMarginPx ?? 3 * r), y1: groundY + 2 };
+}
+
+/** Paints the occluding figure: a dark, slightly textured body (in front of the ball). */
+function paintOccluder(frame: Uint8ClampedArray, width: number, height: number, box: Occluder): void {
+  for (let y = Math.max(0, Math.floor(box.y0)); y < Math.min(height, Math.ceil(box.y1)); y++) {
+    for (let x = Math.max(0, Math.floor(box.x0)); x < Math.min(width, Math.ceil(box.x1)); x++) {
+      const p = (y * width + x) * 3;
+      const stripe = ((y >> 2) & 1) * 12;
+      frame[p] = 150 + stripe;
+      frame[p + 1] = 45 + stripe;
+      frame[p + 2] = 50;
+    }
+  }
+}
+
+/**
+ * Takes the camera's picture from the world canvas: frame pixel centre p maps to the world at
+ * R(rot)·(p − c) + c + (dx, dy) + (x0, y0); colours are interpolated bilinearly.
+ */
+function resample(
+  src: Uint8ClampedArray,
+  sw: number,
+  sh: number,
+  dst: Uint8ClampedArray,
+  width: number,
+  height: number,
+  cam: CameraToReference,
+  x0: number,
+  y0: number,
+): void {
+  const c = Math.cos(cam.rotRad);
+  const s = Math.sin(cam.rotRad);
+  const ox = x0 + cam.dx + width / 2 - 0.5;
+  const oy = y0 + cam.dy + height / 2 - 0.5;
+  for (let v = 0; v < height; v++) {
+    const ry = v + 0.5 - height / 2;
+    for (let u = 0; u < width; u++) {
+      const rx = u + 0.5 - width / 2;
+      const wx = Math.min(sw - 1.001, Math.max(0, c * rx - s * ry + ox));
+      const wy = Math.min(sh - 1.001, Math.max(0, s * rx + c * ry + oy));
+      const ix = Math.floor(wx);
+      const iy = Math.floor(wy);
+      const fx = wx - ix;
+      const fy = wy - iy;
+      const p00 = (iy * sw + ix) * 3;
+      const p10 = p00 + 3;
+      const p01 = p00 + sw * 3;
+      const p11 = p01 + 3;
+      const q = (v * width + u) * 3;
+      for (let k = 0; k < 3; k++) {
+        const a = src[p00 + k]! + (src[p10 + k]! - src[p00 + k]!) * fx;
+        const b = src[p01 + k]! + (src[p11 + k]! - src[p01 + k]!) * fx;
+        dst[q + k] = a + (b - a) * fy;
+      }
+    }
+  }
+}
+
+/** Whether a disk of radius r at (x, y) lies wholly inside the box. */
+function diskInside(box: Occluder | null, x: number, y: number, r: number): boolean {
+  return !!box && x - r >= box.x0 && x + r <= box.x1 && y - r >= box.y0 && y + r <= box.y1;
+}
+
+/** Whether a disk of radius r at (x, y) overlaps the box. */
+function diskTouches(box: Occluder | null, x: number, y: number, r: number): boolean {
+  if (!box) return false;
+  const dx = Math.max(box.x0 - x, 0, x - box.x1);
+  const dy = Math.max(box.y0 - y, 0, y - box.y1);
+  return Math.hypot(dx, dy) < r + 0.5;
+}
+
 /**
  * Draws the ball as a shaded disk with anti-aliased edges, averaged over the positions it takes
  * during the exposure (motion blur). Coverage of an edge pixel is approximated by the distance of
@@ -341,6 +463,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   const seed = spec.seed ?? 1;
   const clutter = spec.clutter ?? true;
   const frameCount = Math.round(durationS * captureFps);
+  const jitter = spec.timestampJitterS ?? 0;
+  const filmedAt = (i: number): number => i / captureFps + jitter * Math.sin(i / 2);
   const flight = simulateFlight(
     spec.speedMps ?? 14,
     ((spec.angleDeg ?? 45) * Math.PI) / 180,
@@ -349,12 +473,37 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
     1 / (captureFps * 16),
     durationS + 1,
   );
+  // With a panning camera everything is drawn on a wider world canvas; (x0, y0) is where the
+  // reference frame's top-left corner sits on it.
+  const pan = spec.pan;
+  const panPx = pan?.panPx ?? 0;
+  const tiltPx = pan?.tiltPx ?? 0;
+  const roll = ((pan?.rollDeg ?? 0) * Math.PI) / 180;
+  const margin = pan ? Math.ceil(Math.abs(roll) * width * 0.6 + 8) : 0;
+  const worldW = width + Math.ceil(Math.abs(panPx)) + 2 * margin;
+  const worldH = height + Math.ceil(Math.abs(tiltPx)) + 2 * margin;
+  const x0 = margin + Math.max(0, -panPx);
+  const y0 = margin + Math.max(0, -tiltPx);
+  const cameraAt = (t: number): CameraToReference => {
+    const u = Math.min(1, Math.max(0, t / durationS));
+    const ease = u * u * (3 - 2 * u);
+    return { dx: panPx * ease, dy: tiltPx * ease, rotRad: roll * Math.sin(Math.PI * u) };
+  };
   const centreAt = (t: number): [number, number] => {
     const [xm, ym] = flight.position(t - launchT);
-    return [launchX + xm * scale, groundY - ym * scale];
+    return [x0 + launchX + xm * scale, y0 + groundY - ym * scale];
+  };
+  /** World position → this frame's pixels. */
+  const toFrame = (cam: CameraToReference, wx: number, wy: number): [number, number] => {
+    const rx = wx - x0 - cam.dx - width / 2;
+    const ry = wy - y0 - cam.dy - height / 2;
+    const c = Math.cos(cam.rotRad);
+    const s = Math.sin(cam.rotRad);
+    return [c * rx + s * ry + width / 2, -s * rx + c * ry + height / 2];
   };
 
-  const scene = paintScene(width, height, groundY, seed, clutter);
+  const world = paintScene(worldW, worldH, y0 + groundY, seed, clutter);
+  const scene = pan ? { rgb: new Uint8ClampedArray(width * height * 3), width, height } : world;
   // Sensor noise: a table of roughly normal values (sum of four uniforms), read at a fresh random
   // offset each frame so the noise moves from frame to frame without a random draw per pixel.
   const rand = mulberry32(seed * 7919 + 1);
@@ -375,6 +524,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   } else {
     args.push('-crf', String(spec.crf ?? 18));
   }
+  // Without B-frames, packets come in presentation order, so the timestamps can be rewritten per packet below.
+  if (jitter) args.push('-bf', '0', '-video_track_timescale', '90000');
   if (spec.keyframeIntervalS) args.push('-g', String(Math.max(1, Math.round(spec.keyframeIntervalS * playbackFps))));
   const rotation = spec.rotationDeg ?? 0;
   // Note: the picture is stored turned back and then tagged, so that a player (and ffmpeg's
@@ -383,7 +534,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   // then writes a display matrix that turns the picture counter-clockwise by the tag's angle.
   const turnBack = { 90: 'transpose=cclock', 180: 'hflip,vflip', 270: 'transpose=clock' } as const;
   const tagFor = { 90: '270', 180: '180', 270: '90' } as const;
-  const encodedPath = rotation === 0 ? videoPath : `${videoPath}.unrotated.mp4`;
+  const encodedPath = rotation === 0 && !jitter ? videoPath : `${videoPath}.encoded.mp4`;
   if (rotation !== 0) args.push('-vf', turnBack[rotation]);
   args.push('-movflags', '+faststart', encodedPath);
   const child = spawn(...toolCommand(ffmpegPath(), args), { stdio: ['pipe', 'ignore', 'pipe'] });
@@ -405,19 +556,24 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
 
   const frames: TruthFrame[] = [];
   const frame = new Uint8ClampedArray(scene.rgb.length);
+  const canvas = pan ? new Uint8ClampedArray(world.rgb.length) : frame;
   const subSamples = exposure > 0 ? 9 : 1;
   const frameInterval = 1 / captureFps;
   let flicker = 0;
   for (let i = 0; i < frameCount; i++) {
-    const t = i / captureFps;
-    frame.set(scene.rgb);
-    if (clutter) paintWalker(frame, width, height, groundY, t, durationS);
+    const t = filmedAt(i);
+    canvas.set(world.rgb);
+    if (clutter) paintWalker(canvas, worldW, worldH, y0 + groundY, t, durationS);
     const centres: Array<[number, number]> = [];
     for (let s = 0; s < subSamples; s++) {
       const dt = subSamples === 1 ? 0 : (s / (subSamples - 1) - 0.5) * exposure * frameInterval;
       centres.push(centreAt(t + dt));
     }
-    paintBall(frame, width, height, centres, radius);
+    paintBall(canvas, worldW, worldH, centres, radius);
+    const box = occluderAt(spec, centreAt, y0 + groundY, t);
+    if (box) paintOccluder(canvas, worldW, worldH, box);
+    const cam = cameraAt(t);
+    if (pan) resample(canvas, worldW, worldH, frame, width, height, cam, x0, y0);
     flicker = Math.max(-2, Math.min(2, flicker + (rand() - 0.5)));
     const offset = Math.floor(rand() * noiseLen);
     const mask = noiseLen - 1;
@@ -429,26 +585,36 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
       frame[p + 2] = frame[p + 2]! + nv;
     }
     await write(frame);
-    const [x, y] = centreAt(t);
+    const [wx, wy] = centreAt(t);
+    const [x, y] = pan ? toFrame(cam, wx, wy) : [wx, wy];
     const sinceLaunch = t - launchT;
+    const occluded = diskTouches(box, wx, wy, radius);
     frames.push({
       frame: i,
       t,
       x,
       y,
-      visible: x - radius >= 0 && y - radius >= 0 && x + radius <= width && y + radius <= height,
+      visible: !occluded && x - radius >= 0 && y - radius >= 0 && x + radius <= width && y + radius <= height,
+      occluded,
+      ...(pan ? { xRef: wx - x0, yRef: wy - y0, camera: cam } : {}),
+      outOfView: diskInside(box, wx, wy, radius) || x + radius <= 0 || y + radius <= 0 || x - radius >= width || y - radius >= height,
       airborne: sinceLaunch > 0 && (flight.landingT === null || sinceLaunch < flight.landingT),
     });
   }
   child.stdin.end();
   const code = await exited;
   if (code !== 0) throw new Error(`ffmpeg failed to encode the test clip: ${lastErrorLine(stderr)}`);
-  if (rotation !== 0) {
-    const res = await runTool(ffmpegPath(), [
-      '-v', 'error', '-nostdin', '-y', '-i', encodedPath, '-c', 'copy', '-metadata:s:v:0', `rotate=${tagFor[rotation]}`, '-movflags', '+faststart', videoPath,
-    ]);
+  if (encodedPath !== videoPath) {
+    const copyArgs = ['-v', 'error', '-nostdin', '-y', '-i', encodedPath, '-c', 'copy'];
+    if (rotation !== 0) copyArgs.push('-metadata:s:v:0', `rotate=${tagFor[rotation]}`);
+    if (jitter) {
+      // Playback seconds of the jitter: the filmed instants scaled from capture to playback rate.
+      const shift = `round(${jitter * (captureFps / playbackFps)}*sin(N/2)/TB)`;
+      copyArgs.push('-bsf:v', `setts=pts='PTS+${shift}':dts='DTS+${shift}'`);
+    }
+    const res = await runTool(ffmpegPath(), [...copyArgs, '-movflags', '+faststart', videoPath]);
     await rm(encodedPath, { force: true });
-    if (res.code !== 0) throw new Error(`ffmpeg failed to tag the test clip's rotation: ${lastErrorLine(res.stderr)}`);
+    if (res.code !== 0) throw new Error(`ffmpeg failed to tag or retime the test clip: ${lastErrorLine(res.stderr)}`);
   }
 
   const landingFrame = flight.landingT === null ? null : Math.ceil((launchT + flight.landingT) * captureFps);
@@ -493,6 +659,10 @@ export interface BadFiles {
   goodFrames: string[];
   /** A JPEG frame among PNG frames of the same size. */
   mixedTypeFrames: string[];
+  /** An MP4 in which one frame is stamped a second before the frames around it. */
+  backwardsTimestamps: string;
+  /** An MP4 whose timestamps jump half a second after frame 20 and repeat at frame 30. */
+  jumpyTimestamps: string;
 }
 
 /** Makes every kind of bad upload in `dir` (created when missing). Needs ffmpeg; takes about a second. */
@@ -516,6 +686,15 @@ export async function makeBadFiles(dir: string): Promise<BadFiles> {
   await truncate(p('cut-no-index.mp4'), Math.floor((await stat(p('cut-no-index.mp4'))).size * 0.7));
 
   await ff(['-f', 'lavfi', '-i', 'sine=frequency=440:duration=1', '-c:a', 'aac', p('sound-only.mp4')]);
+
+  // Timestamps rewritten on a stream copy (the picture has no B-frames: packet N is frame N). The
+  // decode times stay in order, as muxers insist, while one presentation time goes back a second.
+  await ff(['-i', p('whole-faststart.mp4'), '-c', 'copy', '-bsf:v', "setts=pts='if(eq(N,15),PTS-round(1/TB),PTS)':dts='DTS-round(1.5/TB)'", p('backwards.mp4')]);
+  await ff([
+    '-i', p('whole-faststart.mp4'), '-c', 'copy',
+    '-bsf:v', "setts=pts='PTS+if(gte(N,20),round(0.5/TB),0)-if(eq(N,30),round(0.04/TB),0)':dts='DTS+if(gte(N,20),round(0.5/TB),0)-if(eq(N,30),round(0.04/TB),0)'",
+    p('jumpy.mp4'),
+  ]);
 
   // Rename the sample entry `avc1` inside `stsd` to a code no decoder knows: the container stays
   // valid, the stream's codec becomes unreadable.
@@ -548,5 +727,7 @@ export async function makeBadFiles(dir: string): Promise<BadFiles> {
     mixedSizeFrames,
     goodFrames,
     mixedTypeFrames,
+    backwardsTimestamps: p('backwards.mp4'),
+    jumpyTimestamps: p('jumpy.mp4'),
   };
 }

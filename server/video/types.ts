@@ -43,8 +43,20 @@ export interface ClipProbe {
   frameRate: number;
   /** The same rate as ffprobe's exact fraction, for example `30000/1001`. */
   frameRateFraction: string;
-  /** False when the container's nominal and average rates differ (variable frame rate). */
+  /**
+   * The stream's nominal rate (`r_frame_rate`): for a variable-rate clip the rate its timestamps
+   * count in, the one a slow-motion clip's timestamps are scaled from. Equal to `frameRate` otherwise.
+   */
+  nominalFrameRate: number;
+  /** False when the container's nominal and average rates differ, or the frames' timestamps are not evenly spaced (variable frame rate). */
   constantFrameRate: boolean;
+  /**
+   * Presentation time of every frame, seconds at the playback rate from frame 0, when the frames
+   * are not evenly spaced; null for a constant rate (then frame i is at i / frameRate).
+   */
+  frameTimesS: number[] | null;
+  /** What is odd about the timestamps (they jump or repeat), in words for the coach; null when nothing is. */
+  timestampWarning: string | null;
   /** Number of video frames. */
   frameCount: number;
   /** `header` when the container states it (`nb_frames`), `counted` when ffprobe counted packets. */
@@ -133,14 +145,27 @@ export interface FollowStart {
 }
 
 export interface FollowOptions {
-  /** Capture rate for `t` (seconds = frame / captureFps). Default: the source's rate. */
+  /**
+   * Capture rate for `t`. A constant-rate clip: t = frame / captureFps. A variable-rate one: t is
+   * the frame's presentation time × playback rate / captureFps. Default: the source's rate.
+   */
   captureFps?: number;
+  /**
+   * Presentation times of the frames (seconds at the playback rate, as `ClipProbe.frameTimesS`),
+   * for a source that does not carry them (extracted frames of a variable-rate clip).
+   */
+  frameTimesS?: number[] | null;
   /** Stop after this many consecutive frames without a confident detection. Default: a tenth of a second of frames, at least 5. */
   maxLostFrames?: number;
   /** Last frame to consider (inclusive). Default: the end of the clip. */
   endFrame?: number;
   /** Largest expected ball speed in pixels per frame, bounding the first search. Default: a tenth of the frame width. */
   maxSpeedPxPerFrame?: number;
+  /**
+   * `still` (default): the camera did not move. `moving`: the camera's motion is estimated from the
+   * background (camera-motion.ts) and the track is followed in the start frame's coordinates.
+   */
+  camera?: 'still' | 'moving';
   /** Memory for buffered frames, bytes. Default 96 MiB (about 48 frames of 1080p gray). */
   maxBufferBytes?: number;
   /**
@@ -156,18 +181,21 @@ export interface FollowOptions {
 
 export interface FollowPoint {
   frame: number;
-  /** Seconds since frame 0 at the capture rate. */
+  /** Seconds since frame 0 in real time: from the frame's own timestamp, scaled for slow motion. */
   t: number;
   x: number;
   y: number;
   /** 0–1: contrast against the background, agreement with the predicted path and with the ball's size. */
   confidence: number;
+  /** The same point in the reference frame's pixels (the start frame; equal to x, y with a still camera). */
+  xRef: number;
+  yRef: number;
 }
 
 export type FollowStopReason =
   /** No confident detection for `maxLostFrames` frames in a row. */
   | 'lost'
-  /** The predicted centre left the picture. */
+  /** The ball left the picture and its path does not bring it back (or not within 3 s); the points end at the last sighting. */
   | 'left-frame'
   /** The ball stopped descending (hit the ground or bounced). */
   | 'landed'
@@ -178,6 +206,16 @@ export interface FollowResult {
   /** One point per followed frame, in frame order, starting with the start frame. */
   points: FollowPoint[];
   stoppedBecause: FollowStopReason;
+  /**
+   * Runs of frames, between the first and the last point, in which the ball was out of view (out
+   * of the picture, hidden, or not found): they have no point, and no position is guessed for them.
+   */
+  outOfView: Array<{ fromFrame: number; toFrame: number }>;
+  /**
+   * With `camera: 'moving'`: each frame's map to the reference frame's pixels (ref = R(rotRad)·p +
+   * (tx, ty), p from the top-left corner); null with a still camera.
+   */
+  camera: Array<{ frame: number; rotRad: number; tx: number; ty: number }> | null;
   /** Measured (or given) ball radius in pixels. */
   radiusPx: number;
   captureFps: number;

@@ -117,6 +117,10 @@ export interface Clip {
   frameCount: number | null;
   /** frameCount / captureFps: real time, not playback time. */
   durationS: number | null;
+  /** The frames are not evenly spaced: every time comes from the frame's own timestamp. */
+  variableFrameRate: boolean;
+  /** What the upload found odd about the timestamps (they jump or repeat), in words; null when nothing. */
+  timestampWarning: string | null;
   status: ClipStatus;
   failureReason: string | null;
   job: JobSummary | null;

@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { config } from '../../../server/config';
 import { Clip } from '../../../server/models';
+import { frameAtTime, frameTimer } from '../../../server/services/frame-times';
 import { makeBadFiles, type BadFiles } from '../../../server/video/synth';
 import { DEFAULT_MAX_SIDE } from '../../../server/video';
 import { createClubFixture, type ClubFixture } from '../../support/app';
@@ -153,6 +154,27 @@ describe('clip uploads', () => {
     expect(frame.status).toBe(200);
   });
 
+  it('keeps a video whose timestamps jump and repeat, says so, and takes the times of its points from the timestamps', async () => {
+    const res = await upload(fx.coach, fx.clubId, sessionId, { video: bad.jumpyTimestamps });
+    expect(res.status).toBe(201);
+    const { clip } = res.body.data;
+    expect(clip.variableFrameRate).toBe(true);
+    expect(clip.timestampWarning).toMatch(/^1 frame repeats the timestamp of the frame before \(the first is frame 30\).* The timestamps jump 2 times \(the first before frame 20/);
+    const again = (await fx.coach.get(clubPath(fx, `/clips/${clip.id}`))).body.data;
+    expect(again.timestampWarning).toBe(clip.timestampWarning);
+    const row = await Clip.findByPk(clip.id);
+    expect(row!.frameTimes![20]).toBeCloseTo(20 * 0.04 + 0.5, 3);
+    const at = frameTimer(row!);
+    expect(at(19)).toBeCloseTo(0.76, 3);
+    expect(at(21)).toBeCloseTo(0.84 + 0.5, 3);
+    expect(frameAtTime(row!, 1.34)).toBe(21);
+  });
+
+  it('keeps a constant-rate video without a timestamp warning', async () => {
+    const res = await upload(fx.coach, fx.clubId, sessionId, { video });
+    expect(res.body.data.clip).toMatchObject({ variableFrameRate: false, timestampWarning: null });
+  });
+
   it('asks for the rate of a frame set and keeps nothing without it', async () => {
     const before = await clipRowCount(fx.clubId);
     const files = await store.files();
@@ -169,6 +191,7 @@ describe('clip uploads', () => {
     ['a zero-length file', () => ({ video: bad.empty }), 422, 'MEDIA_UNREADABLE', /empty|0 bytes|zero/i],
     ['a video whose codec no decoder reads', () => ({ video: bad.unknownCodec }), 415, 'UNSUPPORTED_MEDIA', /.+/],
     ['a file with sound only', () => ({ video: bad.audioOnly }), 415, 'UNSUPPORTED_MEDIA', /sound only/],
+    ['a video whose timestamps go backwards', () => ({ video: bad.backwardsTimestamps }), 422, 'MEDIA_UNREADABLE', /^The clip's timestamps go backwards: frame 15 .* upload its frames with their capture rate\.$/],
     ['frames of mixed sizes', () => ({ frames: bad.mixedSizeFrames, fields: { captureFps: '50' } }), 422, 'MEDIA_UNREADABLE', /f10\.png.*200×150|200×150.*f10\.png/],
     ['no file at all', () => ({ fields: { captureFps: '50' } }), 400, 'VALIDATION_FAILED', /Choose a video/],
     ['a video and frames together', () => ({ video, frames: bad.goodFrames, fields: { captureFps: '50' } }), 400, 'VALIDATION_FAILED', /either one video or a set of frames/],

@@ -39,17 +39,32 @@ describe('follow command', () => {
     const { code, stdout } = await follow([clip.videoPath, '--from', `20,${at.x.toFixed(1)},${at.y.toFixed(1)}`]);
     expect(code).toBe(0);
     const lines = stdout.trim().split('\n');
-    expect(lines[0]).toBe('frame,t,x_px,y_px,confidence');
+    expect(lines[0]).toBe('frame,t,x_px,y_px,confidence,x_ref_px,y_ref_px');
     const rows = lines.slice(1).map((l) => l.split(',').map(Number));
     expect(rows.length).toBeGreaterThan(50);
     expect(rows[0]![0]).toBe(20);
-    for (const [frame, t, x, y, confidence] of rows as Array<[number, number, number, number, number]>) {
-      expect(t).toBeCloseTo(frame / 60, 5);
+    for (const [frame, t, x, y, confidence, xRef, yRef] of rows as Array<[number, number, number, number, number, number, number]>) {
+      expect(t).toBe(Number((frame / 60).toFixed(6)));
+      // A still camera: the reference frame's pixels are the frame's own.
+      expect([xRef, yRef]).toEqual([x, y]);
       const truth = clip.truth.frames[frame]!;
       expect(Math.hypot(x - truth.x, y - truth.y)).toBeLessThan(3);
       expect(confidence).toBeGreaterThanOrEqual(0);
       expect(confidence).toBeLessThanOrEqual(1);
     }
+  });
+
+  it('gives the track in the start frame\'s pixels after the first five columns when the camera panned', async () => {
+    const clip = await testClip('panning', CLIP_SPECS.panning);
+    const at = clip.truth.frames[14]!;
+    const { code, stdout } = await follow([clip.videoPath, '--from', `14,${at.x.toFixed(1)},${at.y.toFixed(1)}`, '--moving-camera']);
+    expect(code).toBe(0);
+    const rows = stdout.trim().split('\n').slice(1).map((l) => l.split(',').map(Number));
+    const last = rows[rows.length - 1]!;
+    const truth = clip.truth.frames[last[0]!]!;
+    expect(Math.hypot(last[2]! - truth.x, last[3]! - truth.y)).toBeLessThan(3);
+    // By then the view has turned far: the same point sits hundreds of pixels away in the start frame.
+    expect(last[5]! - last[2]!).toBeGreaterThan(200);
   });
 
   it('computes t from --fps when the clip is slow motion', async () => {

@@ -93,6 +93,8 @@ describe('probeClip', () => {
       frameRate: 30,
       frameRateFraction: '30/1',
       constantFrameRate: true,
+      frameTimesS: null,
+      timestampWarning: null,
       frameCount: 78,
       frameCountSource: 'header',
       hasAudio: false,
@@ -165,6 +167,33 @@ describe('probeClip', () => {
     const err = await videoError(probeClip(bad.unknownCodec));
     expect(err.code).toBe('VIDEO_NO_DECODABLE_STREAM');
     expect(err.message).toMatch(/cannot decode.*Export the clip as MP4/);
+  });
+
+  it('refuses a clip whose timestamps go backwards, naming the frame and what to do', async () => {
+    const err = await videoError(probeClip(bad.backwardsTimestamps));
+    expect(err.code).toBe('VIDEO_TIMESTAMPS_BACKWARDS');
+    expect(err.apiCode).toBe('UNPROCESSABLE');
+    expect(err.message).toMatch(/^The clip's timestamps go backwards: frame 15 in the file is stamped .* s, before the .* s of a frame that comes earlier in the file/);
+    expect(err.message).toMatch(/Save or export the clip again .* or upload its frames with their capture rate\.$/);
+  });
+
+  it('keeps a clip whose timestamps jump and repeat, with a warning that says where, and times from the timestamps', async () => {
+    const probe = await probeClip(bad.jumpyTimestamps);
+    expect(probe.constantFrameRate).toBe(false);
+    expect(probe.timestampWarning).toMatch(/1 frame repeats the timestamp of the frame before \(the first is frame 30\)/);
+    expect(probe.timestampWarning).toMatch(/The timestamps jump 2 times \(the first before frame 20, the largest gap 540 ms where frames are 40 ms apart\)/);
+    expect(probe.frameTimesS![19]).toBeCloseTo(19 * 0.04, 3);
+    expect(probe.frameTimesS![20]).toBeCloseTo(20 * 0.04 + 0.5, 3);
+  });
+
+  it('reads each frame\'s own time and no warning when the clip has a variable frame rate', async () => {
+    const clip = await testClip('variableRate', CLIP_SPECS.variableRate);
+    const probe = await probeClip(clip.videoPath);
+    expect(probe.constantFrameRate).toBe(false);
+    expect(probe.timestampWarning).toBeNull();
+    expect(probe.frameTimesS).toHaveLength(clip.truth.frames.length);
+    // The container's clock is 1/90 000 s.
+    for (const f of clip.truth.frames) expect(Math.abs(probe.frameTimesS![f.frame]! - f.t)).toBeLessThan(2e-5);
   });
 
   it('says the file does not exist when the path is wrong', async () => {

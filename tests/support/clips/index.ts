@@ -41,4 +41,14 @@ export const CLIP_SPECS = {
   smallBall: { width: 400, height: 300, captureFps: 50, durationS: 2, ballRadiusPx: 3, exposure: 0, speedMps: 15, angleDeg: 50, seed: 11 },
   /** A phone held upright: stored turned and tagged with a 90° rotation. */
   rotated: { width: 360, height: 480, captureFps: 30, durationS: 1.2, ballRadiusPx: 5, pxPerMetre: 16, speedMps: 13, angleDeg: 55, rotationDeg: 90, seed: 13 },
+  /** A high punt: it leaves through the top of the picture around its apex, comes back and lands. */
+  topExit: { width: 640, height: 360, captureFps: 60, durationS: 4.4, ballRadiusPx: 5, pxPerMetre: 20, launchXPx: 40, speedMps: 22, angleDeg: 72, seed: 17 },
+  /** A long throw that leaves through the right edge while still in the air and never comes back. */
+  sideExit: { width: 480, height: 270, captureFps: 60, durationS: 2.6, ballRadiusPx: 5, speedMps: 24, angleDeg: 35, seed: 19 },
+  /** A variable frame rate: frames filmed up to 4 ms off the 60 fps beat, each stamped with its own time. */
+  variableRate: { width: 480, height: 270, captureFps: 60, durationS: 1.8, ballRadiusPx: 5, speedMps: 16, angleDeg: 45, seed: 29, timestampJitterS: 0.004 },
+  /** A camera turned to follow a long kick: a pan of most of a picture width, a little tilt and a 2° roll. */
+  panning: { width: 480, height: 270, captureFps: 60, durationS: 2.4, ballRadiusPx: 5, launchXPx: 100, speedMps: 24, angleDeg: 38, seed: 31, pan: { panPx: 400, tiltPx: -30, rollDeg: 2 } },
+  /** A person walks across in front of the ball early in its flight and hides it for a few frames. */
+  occluded: { width: 480, height: 270, captureFps: 50, durationS: 2.2, ballRadiusPx: 5, speedMps: 15, angleDeg: 40, seed: 23, occluder: { atS: 0.65, widthPx: 30 } },
 } satisfies Record<string, FlightClipSpec>;
