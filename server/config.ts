@@ -45,6 +45,14 @@ function protocol(name: string, fallback: 'http' | 'https'): 'http' | 'https' {
   return value;
 }
 
+function storageDriver(): 'local' | 's3' {
+  const value = str('STORAGE_DRIVER', 'local');
+  if (value !== 'local' && value !== 's3') {
+    throw new Error(`Environment variable STORAGE_DRIVER must be local or s3 (got "${value}"). Fix it in .env or the environment.`);
+  }
+  return value;
+}
+
 const nodeEnv = str('NODE_ENV', 'development');
 // Vitest sets VITEST=true in its workers; either signal puts the server in test mode.
 const isTest = nodeEnv === 'test' || env.VITEST === 'true';
@@ -155,7 +163,22 @@ export const config = {
     callbackUrl: str('GOOGLE_CALLBACK_URL', `http://${host}:${port}/api/v1/auth/google/callback`),
   },
   storage: {
+    /** `local` (files under STORAGE_DIR, the default) or `s3` (an S3-compatible bucket; STORAGE_DIR then holds only scratch). */
+    driver: storageDriver(),
     dir: resolve(process.cwd(), str('STORAGE_DIR', '.data/storage')),
+    s3: {
+      /** Empty for the provider's own endpoint; `http://127.0.0.1:9000` and the like for a self-hosted server. */
+      endpoint: str('S3_ENDPOINT', ''),
+      region: str('S3_REGION', 'us-east-1'),
+      bucket: str('S3_BUCKET', 'arcwright-clips'),
+      /** Empty keys leave the SDK's default chain (environment, instance or task role). */
+      accessKeyId: str('S3_ACCESS_KEY_ID', ''),
+      secretAccessKey: str('S3_SECRET_ACCESS_KEY', ''),
+      forcePathStyle: flag('S3_FORCE_PATH_STYLE', true),
+      /** Part size of multipart uploads in MiB (at least 5); parts in flight per upload. */
+      partSizeBytes: int('S3_PART_MIB', 8) * 1024 * 1024,
+      queueSize: int('S3_UPLOAD_QUEUE', 4),
+    },
   },
   uploads: {
     maxBytes: int('UPLOAD_MAX_BYTES', 1024 * 1024 * 1024),
