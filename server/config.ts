@@ -45,6 +45,19 @@ function protocol(name: string, fallback: 'http' | 'https'): 'http' | 'https' {
   return value;
 }
 
+/** Parses DB_REPLICAS (`db-r1:3306,db-r2`) into connection settings. */
+function replicaList(raw: string, defaultPort: number, username: string, password: string) {
+  return raw
+    .split(',')
+    .map((part) => part.trim())
+    .filter((part) => part !== '')
+    .map((part) => {
+      const match = /^([^:\s]+)(?::(\d+))?$/.exec(part);
+      if (!match) throw new Error(`DB_REPLICAS must list host or host:port separated by commas (got "${part}"). Fix it in .env or the environment.`);
+      return { host: match[1]!, port: match[2] ? Number(match[2]) : defaultPort, username, password };
+    });
+}
+
 function storageDriver(): 'local' | 's3' {
   const value = str('STORAGE_DRIVER', 'local');
   if (value !== 'local' && value !== 's3') {
@@ -88,7 +101,21 @@ export const config = {
     name: isTest ? str('TEST_DB_NAME', 'arcwright_test') : str('DB_NAME', 'arcwright'),
     user: str('DB_USER', 'arcwright'),
     password: str('DB_PASSWORD', 'arcwright-local'),
-    poolMax: int('DB_POOL_MAX', 10),
+    /**
+     * Read replicas, `host[:port]` separated by commas (empty: every query goes to the primary). They share the
+     * primary's database name and, unless DB_REPLICA_USER / DB_REPLICA_PASSWORD say otherwise, its user.
+     */
+    replicas: replicaList(str('DB_REPLICAS', ''), int('DB_PORT', 3398), str('DB_REPLICA_USER', str('DB_USER', 'arcwright')), str('DB_REPLICA_PASSWORD', str('DB_PASSWORD', 'arcwright-local'))),
+    /**
+     * Connections per pool and process: the primary's pool, and the replicas' pool when there are replicas, each
+     * hold at most DB_POOL_MAX. A worker needs WORKER_CONCURRENCY + 2 (job, lease renewal, claim).
+     */
+    pool: {
+      max: Math.max(1, int('DB_POOL_MAX', 10)),
+      min: int('DB_POOL_MIN', 0),
+      idleMs: int('DB_POOL_IDLE_SECONDS', 10) * 1000,
+      acquireMs: int('DB_POOL_ACQUIRE_SECONDS', 20) * 1000,
+    },
     logSql: flag('DB_LOG_SQL', false),
   },
   session: {
