@@ -205,6 +205,8 @@ export const config = {
       /** Part size of multipart uploads in MiB (at least 5); parts in flight per upload. */
       partSizeBytes: int('S3_PART_MIB', 8) * 1024 * 1024,
       queueSize: int('S3_UPLOAD_QUEUE', 4),
+      /** Create the bucket at start when it is missing (self-hosted servers that start empty). */
+      createBucket: flag('S3_CREATE_BUCKET', false),
     },
   },
   uploads: {

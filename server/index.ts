@@ -7,6 +7,7 @@ import { DEFAULT_SESSION_SECRET, config } from './config';
 import { checkDatabase, sequelize } from './db';
 import { log } from './logger';
 import { migrateUp } from './migrate';
+import { prepareStorage } from './storage';
 
 /** How long requests in flight may take to finish after SIGTERM before their connections are closed. */
 const SHUTDOWN_GRACE_MS = 30_000;
@@ -14,6 +15,7 @@ const SHUTDOWN_GRACE_MS = 30_000;
 async function main(): Promise<void> {
   await checkDatabase();
   await migrateUp();
+  await prepareStorage();
   const app = createApp();
   const server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {

@@ -143,6 +143,9 @@ async function runOnce(workers: number, clips: BenchClip[], s3Endpoint: string, 
     S3_FORCE_PATH_STYLE: '1',
     SIGNUP_RATE_LIMIT_MAX: '100',
     UPLOAD_SWEEP_MINUTES: '0',
+    // Note: a generous lease, since the two cores are shared by every process here: a renewal that waits behind
+    // ffmpeg would let a second worker take the job over (recovered correctly, but then claimed twice).
+    JOB_LEASE_SECONDS: '120',
   };
   const procs: Proc[] = [];
   const bases = [0, 1].map((i) => `http://127.0.0.1:${PORT_BASE + i}`);

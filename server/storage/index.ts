@@ -27,6 +27,12 @@ export function storage(): Storage {
   return current;
 }
 
+/** Start-up work of the configured storage: with `S3_CREATE_BUCKET=1`, the bucket is created when missing. */
+export async function prepareStorage(): Promise<void> {
+  const current = storage();
+  if (current instanceof S3Storage && config.storage.s3.createBucket) await current.ensureBucket();
+}
+
 /** Replaces the storage (tests point it at a temporary folder or a bucket of their own). */
 export function setStorage(next: Storage): void {
   current = next;

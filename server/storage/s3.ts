@@ -13,7 +13,9 @@ import { basename, join, relative, resolve, sep } from 'node:path';
 import { PassThrough, Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import {
+  CreateBucketCommand,
   DeleteObjectsCommand,
+  HeadBucketCommand,
   GetObjectCommand,
   HeadObjectCommand,
   ListObjectsCommand,
@@ -81,6 +83,16 @@ export class S3Storage implements Storage {
       clientConfig.credentials = { accessKeyId: options.accessKeyId, secretAccessKey: options.secretAccessKey };
     }
     this.client = new S3Client(clientConfig);
+  }
+
+  /** Creates the bucket when it is missing (a self-hosted server started empty); never lists or changes one that exists. */
+  async ensureBucket(): Promise<void> {
+    try {
+      await this.client.send(new HeadBucketCommand({ Bucket: this.bucket }));
+    } catch (err) {
+      if (!isMissing(err)) throw err;
+      await this.client.send(new CreateBucketCommand({ Bucket: this.bucket }));
+    }
   }
 
   async put(key: string, body: Readable): Promise<StoredObject> {

@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { checkKey, LocalDiskStorage, type Storage } from '../../../server/storage';
+import { checkKey, LocalDiskStorage, S3Storage, type Storage } from '../../../server/storage';
 import { startS3Fake, type S3Fake } from '../../support/s3';
 
 async function bytes(stream: Readable | null): Promise<Buffer | null> {
@@ -167,3 +167,21 @@ storageContract(
     await rm(s3Scratch, { recursive: true, force: true });
   },
 );
+
+describe('S3Storage.ensureBucket', () => {
+  it('creates a missing bucket once and leaves an existing one as it is', async () => {
+    const own = await startS3Fake({ bucket: 'arcwright-present' });
+    const scratch = await mkdtemp(join(tmpdir(), 'arcwright-s3-bucket-'));
+    try {
+      const fresh = new S3Storage({ bucket: 'arcwright-created', endpoint: own.endpoint, region: 'us-east-1', forcePathStyle: true, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER', scratchDir: scratch });
+      await expect(fresh.put('a/b.txt', Readable.from(['x']))).rejects.toThrow();
+      await fresh.ensureBucket();
+      await fresh.put('a/b.txt', Readable.from(['kept']));
+      await fresh.ensureBucket();
+      expect(await text(await fresh.get('a/b.txt'))).toBe('kept');
+    } finally {
+      await own.stop();
+      await rm(scratch, { recursive: true, force: true });
+    }
+  });
+});
