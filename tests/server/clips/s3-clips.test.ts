@@ -1,12 +1,16 @@
-import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
+import type { Server as HttpServer } from 'node:http';
+import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
+import { Metadata } from '@tus/server';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Clip, sequelize } from '../../../server/models';
 import { setStorage, type S3Storage } from '../../../server/storage';
 import type { FlightTruth } from '../../../server/video/synth';
 import { createClubFixture, type ClubFixture } from '../../support/app';
+import { httpSession } from '../../support/http-session';
 import { startS3Fake, type S3Fake } from '../../support/s3';
 import { clubPath, createSession, flightClip, getJob, upload } from './helpers';
 import { testWorker } from './worker-helper';
@@ -101,6 +105,36 @@ describe('clips on S3-compatible storage', () => {
     expect(await Clip.findByPk(clip.id)).toMatchObject({ status: 'failed', framesReady: false });
     expect(await store.list(`${prefix}/frames`)).toEqual([]);
     expect(await scratchLeft()).toEqual([]);
+  });
+
+  it('streams a resumable upload sent in two parts to the bucket once its last part is in', async () => {
+    const server: HttpServer = fx.app.listen(0, '127.0.0.1');
+    await new Promise<void>((resolve) => server.once('listening', resolve));
+    try {
+      const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+      const coach = await httpSession(base, fx.members.coach.email);
+      const bytes = await readFile(video);
+      const tus = { 'Tus-Resumable': '1.0.0' };
+      const created = await coach.fetch(`/api/v1/clubs/${fx.clubId}/sessions/${sessionId}/clips/uploads`, {
+        method: 'POST',
+        headers: { ...tus, 'Upload-Length': String(bytes.length), 'Upload-Metadata': Metadata.stringify({ filename: 'kick.mp4', label: 'Resumed kick' }) },
+      });
+      expect(created.status).toBe(201);
+      const location = created.headers.get('location')!;
+      const half = Math.floor(bytes.length / 2);
+      const first = await coach.fetch(location, { method: 'PATCH', headers: { ...tus, 'Upload-Offset': '0', 'Content-Type': 'application/offset+octet-stream' }, body: bytes.subarray(0, half) });
+      expect(first.status).toBe(204);
+      const last = await coach.fetch(location, { method: 'PATCH', headers: { ...tus, 'Upload-Offset': String(half), 'Content-Type': 'application/offset+octet-stream' }, body: bytes.subarray(half) });
+      expect(last.status).toBe(201);
+      const { clip } = ((await last.json()) as { data: { clip: { id: number } } }).data;
+      const key = `clubs/${fx.clubId}/clips/${clip.id}/source/video.mp4`;
+      expect(await store.stat(key)).toEqual({ key, sizeBytes: bytes.length });
+      expect(await scratchLeft()).toEqual([]);
+      const partial = (await readdir(join(scratch, '.partial-uploads'))).filter((name) => !name.endsWith('.kept'));
+      expect(partial).toEqual([]);
+    } finally {
+      await new Promise((resolve) => server.close(resolve));
+    }
   });
 
   it('deletes every object of a clip with the clip', async () => {
