@@ -112,7 +112,13 @@ export class S3Storage implements Storage {
       // A failed multipart upload is aborted, so no parts stay behind in the bucket.
       leavePartsOnError: false,
     });
-    await upload.done();
+    try {
+      await upload.done();
+    } catch (err) {
+      // The body may be a file stream that the failed upload stopped reading: close it.
+      body.destroy();
+      throw err;
+    }
     return { key: clean, sizeBytes };
   }
 

@@ -75,6 +75,16 @@ function storageContract(name: string, open: () => Promise<Subject>, close: () =
       expect(back?.equals(big)).toBe(true);
     });
 
+    it('keeps no object when the body fails part-way', async () => {
+      async function* failing() {
+        yield Buffer.alloc(64 * 1024, 1);
+        throw new Error('camera card removed');
+      }
+      await expect(storage.put('clubs/1/clips/9/source/video.mp4', Readable.from(failing()))).rejects.toThrow(/camera card removed/);
+      expect(await storage.stat('clubs/1/clips/9/source/video.mp4')).toBeNull();
+      expect(await storage.list('clubs/1/clips/9')).toEqual([]);
+    });
+
     it('moves a local file in and removes the local copy', async () => {
       const work = await storage.workDir('upload');
       await writeFile(join(work, 'part-0'), 'clip bytes');
