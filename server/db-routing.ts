@@ -6,8 +6,8 @@
  * its own writes from the primary: each request (and each job a worker runs) gets a scope, and the first query
  * in it that is not a plain read sets the scope's `primary` flag; from then on the scope's reads ask for the
  * primary too (`useMaster`). Jobs run with the flag set from the start, because their input was written by
- * another process an instant before. Tables whose rows must never be read stale (the sign-in sessions, whose
- * row a request reads right after the previous request wrote it) always read from the primary.
+ * another process an instant before. Tables whose rows must never be read stale (sign-in sessions, users and
+ * memberships, which a request reads right after the previous request wrote them) always read from the primary.
  */
 import { AsyncLocalStorage } from 'node:async_hooks';
 import type { NextFunction, Request, Response } from 'express';
@@ -19,8 +19,12 @@ interface ReadScope {
 
 const scopes = new AsyncLocalStorage<ReadScope>();
 
-/** Tables read from the primary always. */
-const PRIMARY_ONLY_TABLES = new Set(['auth_sessions']);
+/**
+ * Tables read from the primary always: who is signed in, and their memberships (the authorization of every
+ * request). A stale copy would sign a member out or refuse them a club in the request right after sign-up,
+ * sign-in or joining; they are small reads by key.
+ */
+const PRIMARY_ONLY_TABLES = new Set(['auth_sessions', 'users', 'memberships']);
 
 /** Runs `work` in a fresh scope: reads may use replicas until it writes. */
 export function inReadScope<T>(work: () => T): T {
