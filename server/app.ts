@@ -10,6 +10,7 @@ import passport from 'passport';
 import { configurePassport } from './auth/passport';
 import { config } from './config';
 import { sequelize } from './db';
+import { readScopePerRequest } from './db-routing';
 import { csrfProtection } from './http/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import type { LimitOptions } from './http/rate-limit';
@@ -98,6 +99,8 @@ export function createApp(options: AppOptions = {}): Express {
   app.use(requestId);
   app.use(accessLog());
   app.use(closeConnectionsWhileDraining);
+  // Reads of a request that has written go to the primary when read replicas are configured.
+  app.use(readScopePerRequest);
   app.use(securityHeaders());
 
   // The payment webhook reads its raw body (the signature covers the exact bytes): before express.json().

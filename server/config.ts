@@ -45,6 +45,27 @@ function protocol(name: string, fallback: 'http' | 'https'): 'http' | 'https' {
   return value;
 }
 
+/** Parses DB_REPLICAS (`db-r1:3306,db-r2`) into connection settings. */
+function replicaList(raw: string, defaultPort: number, username: string, password: string) {
+  return raw
+    .split(',')
+    .map((part) => part.trim())
+    .filter((part) => part !== '')
+    .map((part) => {
+      const match = /^([^:\s]+)(?::(\d+))?$/.exec(part);
+      if (!match) throw new Error(`DB_REPLICAS must list host or host:port separated by commas (got "${part}"). Fix it in .env or the environment.`);
+      return { host: match[1]!, port: match[2] ? Number(match[2]) : defaultPort, username, password };
+    });
+}
+
+function storageDriver(): 'local' | 's3' {
+  const value = str('STORAGE_DRIVER', 'local');
+  if (value !== 'local' && value !== 's3') {
+    throw new Error(`Environment variable STORAGE_DRIVER must be local or s3 (got "${value}"). Fix it in .env or the environment.`);
+  }
+  return value;
+}
+
 const nodeEnv = str('NODE_ENV', 'development');
 // Vitest sets VITEST=true in its workers; either signal puts the server in test mode.
 const isTest = nodeEnv === 'test' || env.VITEST === 'true';
@@ -80,7 +101,21 @@ export const config = {
     name: isTest ? str('TEST_DB_NAME', 'arcwright_test') : str('DB_NAME', 'arcwright'),
     user: str('DB_USER', 'arcwright'),
     password: str('DB_PASSWORD', 'arcwright-local'),
-    poolMax: int('DB_POOL_MAX', 10),
+    /**
+     * Read replicas, `host[:port]` separated by commas (empty: every query goes to the primary). They share the
+     * primary's database name and, unless DB_REPLICA_USER / DB_REPLICA_PASSWORD say otherwise, its user.
+     */
+    replicas: replicaList(str('DB_REPLICAS', ''), int('DB_PORT', 3398), str('DB_REPLICA_USER', str('DB_USER', 'arcwright')), str('DB_REPLICA_PASSWORD', str('DB_PASSWORD', 'arcwright-local'))),
+    /**
+     * Connections per pool and process: the primary's pool, and the replicas' pool when there are replicas, each
+     * hold at most DB_POOL_MAX. A worker needs WORKER_CONCURRENCY + 2 (job, lease renewal, claim).
+     */
+    pool: {
+      max: Math.max(1, int('DB_POOL_MAX', 10)),
+      min: int('DB_POOL_MIN', 0),
+      idleMs: int('DB_POOL_IDLE_SECONDS', 10) * 1000,
+      acquireMs: int('DB_POOL_ACQUIRE_SECONDS', 20) * 1000,
+    },
     logSql: flag('DB_LOG_SQL', false),
   },
   session: {
@@ -164,7 +199,24 @@ export const config = {
     scryptLogN: int('PASSWORD_SCRYPT_LOG_N', 17),
   },
   storage: {
+    /** `local` (files under STORAGE_DIR, the default) or `s3` (an S3-compatible bucket; STORAGE_DIR then holds only scratch). */
+    driver: storageDriver(),
     dir: resolve(process.cwd(), str('STORAGE_DIR', '.data/storage')),
+    s3: {
+      /** Empty for the provider's own endpoint; `http://127.0.0.1:9000` and the like for a self-hosted server. */
+      endpoint: str('S3_ENDPOINT', ''),
+      region: str('S3_REGION', 'us-east-1'),
+      bucket: str('S3_BUCKET', 'arcwright-clips'),
+      /** Empty keys leave the SDK's default chain (environment, instance or task role). */
+      accessKeyId: str('S3_ACCESS_KEY_ID', ''),
+      secretAccessKey: str('S3_SECRET_ACCESS_KEY', ''),
+      forcePathStyle: flag('S3_FORCE_PATH_STYLE', true),
+      /** Part size of multipart uploads in MiB (at least 5); parts in flight per upload. */
+      partSizeBytes: int('S3_PART_MIB', 8) * 1024 * 1024,
+      queueSize: int('S3_UPLOAD_QUEUE', 4),
+      /** Create the bucket at start when it is missing (self-hosted servers that start empty). */
+      createBucket: flag('S3_CREATE_BUCKET', false),
+    },
   },
   uploads: {
     maxBytes: int('UPLOAD_MAX_BYTES', 1024 * 1024 * 1024),

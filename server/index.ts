@@ -11,6 +11,7 @@ import { armHardExit, drainHttpServer, installCrashHandlers } from './lifecycle'
 import { errorFields, log } from './logger';
 import { migrateUp } from './migrate';
 import { assertSafeConfiguration } from './startup-checks';
+import { prepareStorage } from './storage';
 
 /** Time after the grace period for the last steps (closing the pool) before the hard exit. */
 const HARD_EXIT_MARGIN_MS = 5_000;
@@ -19,6 +20,7 @@ async function main(): Promise<void> {
   assertSafeConfiguration(config);
   await checkDatabase();
   await migrateUp();
+  await prepareStorage();
   const app = createApp();
   const server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {

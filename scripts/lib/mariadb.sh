@@ -132,8 +132,9 @@ db_setup() {
   for host in 127.0.0.1 localhost; do
     sql+="CREATE USER IF NOT EXISTS $user@'$host' IDENTIFIED BY $pass;"
     sql+="ALTER USER $user@'$host' IDENTIFIED BY $pass;"
-    # The third test database is scratch space for the migration round-trip test; the last is the API bench's.
-    for db in "$DB_NAME" "$TEST_DB_NAME" "$E2E_DB_NAME" "${TEST_DB_NAME}_migrations" "$BENCH_DB_NAME"; do
+    # The third test database is scratch space for the migration round-trip test, the fourth a stand-in
+    # read replica for the replication test; the last is the API bench's.
+    for db in "$DB_NAME" "$TEST_DB_NAME" "$E2E_DB_NAME" "${TEST_DB_NAME}_migrations" "${TEST_DB_NAME}_replica" "$BENCH_DB_NAME"; do
       sql+="GRANT ALL PRIVILEGES ON $(sql_ident "$db").* TO $user@'$host';"
     done
   done

@@ -6,6 +6,7 @@
  */
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
+import { onPrimary } from '../db-routing';
 import { timedOut } from '../lifecycle';
 import { log } from '../logger';
 import type { Job } from '../models';
@@ -92,7 +93,8 @@ export class JobWorker {
   async runOnce(): Promise<boolean> {
     const claim = await claimNext(this.id, { types: [...this.handlers.keys()], leaseMs: this.leaseMs });
     if (!claim) return false;
-    await this.execute(claim.job, claim.exhausted);
+    // A job's input was written by another process just before: its reads go to the primary, never a lagging replica.
+    await onPrimary(() => this.execute(claim.job, claim.exhausted));
     return true;
   }
 

@@ -107,7 +107,9 @@ export async function deleteAction(club: ClubContext, actionId: number): Promise
 
 async function checkAction(clubId: number, key: string, transaction?: Transaction): Promise<void> {
   await ensureDefaultActions(clubId, transaction);
-  const action = await FlightAction.findOne({ where: { clubId, key }, transaction });
+  // Note: a locking read sees the rows another transaction committed meanwhile (the default list inserted by a
+  // concurrent first flight of the club), which the transaction's own snapshot would not.
+  const action = await FlightAction.findOne({ where: { clubId, key }, transaction, ...(transaction ? { lock: transaction.LOCK.SHARE } : {}) });
   if (!action || action.archived) {
     throw new ApiError('VALIDATION_FAILED', `"${key}" is not an action of this club. Pick one from the list, or add it under the club's actions.`, {
       action: 'Pick an action from the list.',

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Flight, TrackPoint } from '../../../server/models';
 import { createClubFixture, type ClubFixture } from '../../support/app';
-import { clubPath, createSession, flightClip, upload, useTestStorage, type TestStorage } from './helpers';
+import { clubPath, createSession, flightClip, insertClip, upload, useTestStorage, type TestStorage } from './helpers';
 import { testWorker } from './worker-helper';
 
 let fx: ClubFixture;
@@ -41,6 +41,16 @@ describe('flight actions', () => {
     expect((res.body.data as { key: string }[]).map((a) => a.key)).toEqual([
       'punt', 'drop_kick', 'place_kick', 'goal_kick', 'long_throw', 'throw_in', 'serve', 'pitch', 'outfield_throw', 'shot_put',
     ]);
+  });
+
+  it('creates the first flights of a new club at once, each finding the default actions', async () => {
+    const fresh = await createClubFixture();
+    const freshSession = await createSession(fresh.coach, fresh.clubId);
+    const clip = await insertClip(fresh.clubId, freshSession);
+    const answers = await Promise.all(
+      Array.from({ length: 6 }, () => fresh.coach.post(clubPath(fresh, `/clips/${clip.id}/flights`), { athleteId: fresh.otherAthleteProfileId, action: 'punt', ballId: 'football-5' })),
+    );
+    expect(answers.map((a) => a.status)).toEqual([201, 201, 201, 201, 201, 201]);
   });
 
   it('adds a club action with a key made from its label, and refuses the same key twice', async () => {
