@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { DEMO_USERS, launchBrowser, newContext, SCREENSHOT_DIR, screenshot, settle, signIn, withPage } from './support/browser';
-import { apiWrite, demoClubId, waitForFittedDemoFlight, type ApiFlight } from './support/demo';
+import { apiWrite, demoClubId, waitForFittedDemoFlight, waitForFittedDemoFlightWithFrames, type ApiFlight } from './support/demo';
 
 /**
  * Display units in the browser: the demo club switched to imperial shows feet, mph and °F (and no metric figure)
@@ -62,7 +62,7 @@ describe('Display units', () => {
     adminContext = await newContext(browser);
     admin = await adminContext.newPage();
     await signIn(admin, DEMO_USERS.admin.email);
-    flight = await waitForFittedDemoFlight(admin);
+    flight = await waitForFittedDemoFlightWithFrames(admin);
     const sessions = (await (await admin.request.get(`/api/v1/clubs/${await demoClubId(admin)}/sessions`)).json()) as { data: { venue: string }[] };
     typedNames = sessions.data.map((s) => s.venue).filter((v) => METRIC_FIGURE.test(v));
     await setClubUnits(admin, 'imperial');
@@ -244,12 +244,14 @@ describe('Display units', () => {
         const chart = page.locator('.session-report__section', { hasText: 'Launch speed and angle' });
         const canvas = chart.locator('canvas').first();
         await canvas.waitFor();
+        // The flights table comes first: bring the chart into the viewport, where the mouse can reach it.
+        await canvas.scrollIntoViewIfNeeded();
         await settle(page);
         const box = (await canvas.boundingBox())!;
         // Sweep the plot until a point's tooltip shows.
         let shown = false;
-        for (let y = box.y + 40; y < box.y + box.height - 45 && !shown; y += 4) {
-          for (let x = box.x + 56; x < box.x + box.width - 20 && !shown; x += 4) {
+        for (let y = box.y + 40; y < box.y + box.height - 45 && !shown; y += 8) {
+          for (let x = box.x + 56; x < box.x + box.width - 20 && !shown; x += 8) {
             await page.mouse.move(x, y);
             shown = (await chart.innerText()).includes('<b>x</b> ');
           }

@@ -18,7 +18,7 @@ export async function demoClubId(page: Page): Promise<number> {
 }
 
 export async function listDemoFlights(page: Page): Promise<ApiFlight[]> {
-  const answer = await page.request.get(`/api/v1/clubs/${await demoClubId(page)}/flights`);
+  const answer = await page.request.get(`/api/v1/clubs/${await demoClubId(page)}/flights?pageSize=200`);
   return ((await answer.json()) as { data: ApiFlight[] }).data;
 }
 
@@ -39,4 +39,19 @@ export async function waitForFittedDemoFlight(page: Page, pick: (f: ApiFlight) =
     await page.waitForTimeout(1000);
   }
   throw new Error('No demo flight was fitted within 60 s: see test-results/e2e-server.log for the worker.');
+}
+
+/** A fitted demo flight whose clip has frames to trace (most demo reps are seeded tracks without footage). */
+export async function waitForFittedDemoFlightWithFrames(page: Page): Promise<ApiFlight> {
+  const clubId = await demoClubId(page);
+  const deadline = Date.now() + 90000;
+  while (Date.now() < deadline) {
+    const fitted = (await listDemoFlights(page)).filter((f) => f.latestFit !== null && ['fitted', 'reviewed'].includes(f.status));
+    for (const flight of fitted) {
+      const clip = (await (await page.request.get(`/api/v1/clubs/${clubId}/clips/${flight.clipId}`)).json()) as { data?: { framesReady?: boolean } };
+      if (clip.data?.framesReady) return flight;
+    }
+    await page.waitForTimeout(1000);
+  }
+  throw new Error('No demo flight with frames was fitted within 90 s: see test-results/e2e-server.log for the worker.');
 }
