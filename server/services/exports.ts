@@ -10,20 +10,27 @@ import type { flightsExportQuerySchema } from '../../shared/schemas/export';
 import type { UnitSystem } from '../../shared/units';
 import type { ClubContext } from '../http/types';
 import { Session } from '../models';
+import { listClubBalls } from './balls';
 import { listActions, listFlights } from './flights';
 import { findVisibleSession } from './visibility';
 
 /** The export rows of flights: labels of actions, balls and states as the screens show them, the session's day and venue. */
 async function csvRows(club: ClubContext, flights: FlightDto[]): Promise<FlightCsvRow[]> {
   const sessionIds = [...new Set(flights.map((f) => f.sessionId))];
-  const [actions, sessions] = await Promise.all([
+  const [actions, sessions, balls] = await Promise.all([
     listActions(club),
     sessionIds.length === 0 ? Promise.resolve([]) : Session.findAll({ where: { id: sessionIds, clubId: club.id }, attributes: ['id', 'date', 'venue'] }),
+    listClubBalls(club),
   ]);
+  const ballNameOf = new Map(balls.map((b) => [b.ballId, b.name]));
   const actionLabel = new Map(actions.map((a) => [a.key, a.label]));
   const sessionOf = new Map(sessions.map((s) => [s.id, s]));
   return flights.map((f) =>
-    flightCsvRow(f, { session: sessionOf.get(f.sessionId) ?? null, actionLabel: actionLabel.get(f.action) ?? actionKeyWords(f.action) }),
+    flightCsvRow(f, {
+      session: sessionOf.get(f.sessionId) ?? null,
+      actionLabel: actionLabel.get(f.action) ?? actionKeyWords(f.action),
+      ballName: ballNameOf.get(f.ballId),
+    }),
   );
 }
 

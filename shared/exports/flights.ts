@@ -48,6 +48,8 @@ export interface FlightCsvRow {
 export interface FlightRowContext {
   session: { date: string; venue: string } | null;
   actionLabel: string;
+  /** The ball's name when the caller knows it (a club's own ball); else the catalogue's, else the id. */
+  ballName?: string;
 }
 
 /** An action's label for a key the club's list does not hold (an archived or unknown action): the key in words. */
@@ -64,7 +66,7 @@ export function flightCsvRow(flight: Flight, context: FlightRowContext): FlightC
     venue: context.session?.venue ?? null,
     athleteName: flight.athleteName,
     actionLabel: context.actionLabel,
-    ballName: BALLS[flight.ballId]?.name ?? flight.ballId,
+    ballName: context.ballName ?? BALLS[flight.ballId]?.name ?? flight.ballId,
     statusLabel: FLIGHT_STATUS_LABELS[flight.status],
     launchSpeedMps: fit?.launchSpeedMps ?? null,
     launchAngleDeg: fit?.launchAngleDeg ?? null,

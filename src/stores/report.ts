@@ -6,7 +6,7 @@ import { actionKeyWords, flightCsvRow, type FlightCsvRow } from '@shared/exports
 import { fetchAthletes } from '@/api/athletes';
 import { listSessions } from '@/api/sessions';
 import { listFlightActions, listFlights, listFlightsPage, type Flight, type FlightAction } from '@/api/flights';
-import { BALL_OPTIONS } from '@/components/trace/balls';
+import { ballName, groupedBallOptions } from '@/components/trace/balls';
 import { useLatestLoad } from '@/composables/use-latest-load';
 import { useClubStore } from './club';
 
@@ -81,7 +81,11 @@ export const useReportStore = defineStore('report', () => {
 
   function toRow(flight: Flight): FlightRow {
     return {
-      ...flightCsvRow(flight, { session: sessionById.value.get(flight.sessionId) ?? null, actionLabel: labelOfAction(flight.action) }),
+      ...flightCsvRow(flight, {
+        session: sessionById.value.get(flight.sessionId) ?? null,
+        actionLabel: labelOfAction(flight.action),
+        ballName: ballName(flight.ballId),
+      }),
       flight,
       status: flight.status,
     };
@@ -96,7 +100,7 @@ export const useReportStore = defineStore('report', () => {
   const actionOptions = computed(() =>
     actions.value.filter((a) => !a.archived || a.key === filters.value.action).map((a) => ({ value: a.key, label: a.label })),
   );
-  const ballOptions = computed(() => [...BALL_OPTIONS].sort((a, b) => a.label.localeCompare(b.label)));
+  const ballOptions = computed(() => groupedBallOptions().flatMap((g) => g.items).sort((a, b) => a.label.localeCompare(b.label)));
 
   function serverFilters() {
     return { ...filters.value };

@@ -137,6 +137,26 @@ describe('Display units', () => {
       await screenshot(page, 'units-imperial-trace');
       expect(errors).toEqual([]);
     });
+    // The athlete's own screens follow the club's units too.
+    await onPage(browser, async (page, errors) => {
+      await signIn(page, DEMO_USERS.athlete.email);
+      for (const [path, where] of [
+        ['/my-flights', 'My flights'],
+        ['/flights', 'Flights (athlete)'],
+        ['/progress', 'Progress (athlete)'],
+      ] as [string, string][]) {
+        await page.goto(path);
+        await page.getByTestId('page-title').waitFor();
+        expectImperialOnly(await contentText(page), where);
+      }
+      await screenshot(page, 'units-imperial-my-flights-progress');
+      await page.goto('/my-flights');
+      await page.getByTestId('page-title').waitFor();
+      const shown = await contentText(page);
+      expect(shown).toMatch(/\d ft\b|\d mph\b/);
+      await screenshot(page, 'units-imperial-my-flights');
+      expect(errors).toEqual([]);
+    });
   });
 
   it('stores a temperature, altitude and wind typed in °F, ft and mph in SI when a coach of an imperial club creates a session', async () => {

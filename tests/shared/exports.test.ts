@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { csvDocument, csvFileName, defuseFormula, roundCell, UTF8_BOM } from '../../shared/exports/csv';
-import { flightCsvColumns, flightsCsv, type FlightCsvRow } from '../../shared/exports/flights';
+import { flightCsvColumns, flightCsvRow, flightsCsv, type FlightCsvRow } from '../../shared/exports/flights';
+import type { Flight } from '../../shared/schemas/flight';
 import { exportRecords } from '../support/csv';
 
 const row = (over: Partial<FlightCsvRow> = {}): FlightCsvRow => ({
@@ -139,5 +140,19 @@ describe('csvFileName', () => {
   it('keeps only lower-case letters, digits and dashes when names hold spaces or accents', () => {
     expect(csvFileName('session', '2026-03-14', 'Prés du Lac, pitch 2')).toBe('arcwright-session-2026-03-14-pr-s-du-lac-pitch-2.csv');
     expect(csvFileName('flights', '2026-03-14')).toBe('arcwright-flights-2026-03-14.csv');
+  });
+});
+
+describe('flightCsvRow', () => {
+  const flight = {
+    id: 3, clubId: 1, sessionId: 2, clipId: 4, athleteId: 5, athleteName: 'Juno Pelham', action: 'punt', ballId: 'club:9',
+    frameStart: 0, frameEnd: 40, releaseFrame: null, releaseHeightM: null, status: 'traced', attentionReason: null, notes: null,
+    pointCount: 30, latestFit: null, job: null, createdAt: '2026-03-14T18:00:00.000Z', updatedAt: '2026-03-14T18:00:00.000Z',
+  } as unknown as Flight;
+
+  it("names a club's own ball by the name the caller looked up, and a catalogue ball by the catalogue", () => {
+    expect(flightCsvRow(flight, { session: null, actionLabel: 'Punt', ballName: 'Fennick play ball' }).ballName).toBe('Fennick play ball');
+    expect(flightCsvRow({ ...flight, ballId: 'rugby' }, { session: null, actionLabel: 'Punt' }).ballName).toBe('Rugby union ball');
+    expect(flightCsvRow(flight, { session: null, actionLabel: 'Punt' }).ballName).toBe('club:9');
   });
 });
