@@ -23,7 +23,7 @@ function ballCheckWarning(check: BallCheck | null | undefined): FitWarning | nul
   const pct = Math.round(check.ratio * 100);
   return {
     code: 'BALL_SIZE_MISMATCH',
-    message: `The ball measures ${pct} % of its real diameter in the calibration (${(check.apparentDiameterM * 100).toFixed(1)} cm against ${(check.catalogueDiameterM * 100).toFixed(1)} cm): the scale, or the ball picked for the size check, is off by more than ${Math.round(BALL_CHECK_TOLERANCE * 100)} %. Re-check the two scale points and their distance, and the ball.`,
+    message: `The ball measures ${pct} % of its real diameter in the calibration (the Trace screen's calibration panel shows both sizes in your units): the scale, or the ball picked for the size check, is off by more than ${Math.round(BALL_CHECK_TOLERANCE * 100)} %. Re-check the two scale points and their distance, and the ball.`,
   };
 }
 
