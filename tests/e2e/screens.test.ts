@@ -3,7 +3,7 @@ import { createRequire } from 'node:module';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, signIn } from './support/browser';
-import { waitForFittedDemoFlight } from './support/demo';
+import { demoClubId, waitForFittedDemoFlight } from './support/demo';
 
 /**
  * Every screen for each role, on a desktop (1366 px) and on a phone (390 px): axe-core's WCAG 2.1 A/AA rules find no
@@ -28,21 +28,28 @@ interface Violation {
   nodes: { target: string[]; failureSummary?: string }[];
 }
 
+/** A clip whose frames are extracted (the Trace stage shows), else null; some demo flights have no footage. */
+async function clipWithFrames(page: Page): Promise<number | null> {
+  const answer = await page.request.get(`/api/v1/clubs/${await demoClubId(page)}/clips`);
+  const clips = ((await answer.json()) as { data?: { id: number; framesReady: boolean }[] }).data ?? [];
+  return clips.find((c) => c.framesReady)?.id ?? null;
+}
+
 /** The screens a role opens from the rail and from one of the flights it may see. */
-function screensFor(role: Role, flight: { id: number; sessionId: number; clipId: number }): Screen[] {
+function screensFor(role: Role, flight: { id: number; sessionId: number; clipId: number }, tracedClipId: number): Screen[] {
   const screens: Screen[] = [
     { name: 'overview', path: '/' },
     { name: 'sessions', path: '/sessions' },
     { name: 'session', path: `/sessions/${flight.sessionId}` },
     { name: 'session-report', path: `/sessions/${flight.sessionId}/report` },
     { name: 'clips', path: '/clips' },
-    { name: 'clip', path: `/clips/${flight.clipId}` },
+    { name: 'clip', path: `/clips/${tracedClipId}` },
     { name: 'flights', path: '/flights' },
     { name: 'flight-report', path: `/flights/${flight.id}` },
     { name: 'progress', path: '/progress' },
     { name: 'planner', path: '/planner' },
   ];
-  if (role !== 'athlete') screens.push({ name: 'trace', path: `/clips/${flight.clipId}/trace` }, { name: 'squad', path: '/squad' });
+  if (role !== 'athlete') screens.push({ name: 'trace', path: `/clips/${tracedClipId}/trace` }, { name: 'squad', path: '/squad' });
   if (role === 'admin') screens.push({ name: 'club', path: '/club' }, { name: 'billing', path: '/billing' });
   return screens;
 }
@@ -137,7 +144,8 @@ describe('screens: accessibility and phone widths', () => {
       try {
         await signIn(page, DEMO_USERS[role].email);
         const flight = await waitForFittedDemoFlight(page);
-        for (const screen of screensFor(role, flight)) {
+        const tracedClipId = (await clipWithFrames(page)) ?? flight.clipId;
+        for (const screen of screensFor(role, flight, tracedClipId)) {
           await page.setViewportSize({ width: WIDTHS.desktop, height: 860 });
           await page.goto(screen.path);
           await ready(page);
