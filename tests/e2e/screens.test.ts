@@ -155,6 +155,12 @@ describe('screens: accessibility and phone widths', () => {
           await ready(page);
           violations.push(...(await seriousViolations(page)).map((v) => `${screen.name} at 390px: ${v}`));
           await screenshot(page, `phone-${role}-${screen.name}`);
+          if (screen.name === 'planner') {
+            // The figures stay in view (sticky) while the last slider, far below them, is moved.
+            await page.locator('[data-testid^="slider-"]').last().scrollIntoViewIfNeeded();
+            const readouts = await page.getByTestId('planner-readouts').boundingBox();
+            expect(readouts && readouts.y >= 0 && readouts.y + readouts.height <= 860, 'the Planner figures are in view').toBe(true);
+          }
 
           await page.setViewportSize({ width: WIDTHS.narrow, height: 860 });
           await page.evaluate(() => new Promise<void>((done) => requestAnimationFrame(() => requestAnimationFrame(() => done()))));
