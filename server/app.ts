@@ -4,6 +4,7 @@
  */
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
+import compression from 'compression';
 import express, { Router, type Express } from 'express';
 import helmet from 'helmet';
 import passport from 'passport';
@@ -102,6 +103,9 @@ export function createApp(options: AppOptions = {}): Express {
   // Reads of a request that has written go to the primary when read replicas are configured.
   app.use(readScopePerRequest);
   app.use(securityHeaders());
+  // Text answers (the client's JS, CSS and HTML, JSON, CSV) go out as brotli or gzip, whichever the browser
+  // accepts; video, images and answers under 1 KiB go out as they are.
+  app.use(compression());
 
   // The payment webhook reads its raw body (the signature covers the exact bytes): before express.json().
   app.use('/api/v1', billingWebhookRouter);

@@ -27,6 +27,14 @@ describe('palette', () => {
     expect(contrastRatio(deriveSurface()[600], '#ffffff')).toBeGreaterThanOrEqual(4.5);
   });
 
+  it('keeps placeholders (surface 600) and secondary button text (surface 700) at 4.5:1 on every panel shade', () => {
+    const surface = deriveSurface();
+    for (const background of ['#ffffff', surface[50], surface[100], surface[200]]) {
+      expect(contrastRatio(surface[600], background)).toBeGreaterThanOrEqual(4.5);
+      expect(contrastRatio(surface[700], background)).toBeGreaterThanOrEqual(4.5);
+    }
+  });
+
   it('matches the WCAG 2.1 end points when contrast of black and white is computed', () => {
     expect(contrastRatio('#000000', '#ffffff')).toBeCloseTo(21, 10);
     expect(relativeLuminance('#ffffff')).toBeCloseTo(1, 12);

@@ -144,15 +144,29 @@ describe('sign-in and the app shell', () => {
     });
   }
 
-  it('narrows the rail to icons when the screen is narrow', async () => {
+  it('turns the rail into a bar with a labelled menu when the screen is narrow', async () => {
     await withPage(async (page) => {
       await page.setViewportSize({ width: 480, height: 860 });
       await signIn(page, DEMO_USERS.coach.email);
       await page.getByTestId('overview-club-name').waitFor();
       const rail = await page.getByTestId('rail').boundingBox();
-      expect(rail?.width).toBeLessThan(90);
-      await expect(page.getByTestId('rail-squad').isVisible()).resolves.toBe(true);
-      await screenshot(page, 'coach-overview-narrow');
+      // Across the top, not a column beside the content.
+      expect(rail?.width).toBe(480);
+      expect(rail?.height).toBeLessThan(80);
+      await expect(page.getByTestId('rail-squad').isVisible()).resolves.toBe(false);
+      const toggle = page.getByTestId('rail-menu');
+      await expect(toggle.getAttribute('aria-expanded')).resolves.toBe('false');
+      await toggle.click();
+      await expect(toggle.getAttribute('aria-expanded')).resolves.toBe('true');
+      // Every link keeps its text label (its accessible name).
+      await expect(page.getByRole('link', { name: 'Squad' }).isVisible()).resolves.toBe(true);
+      await expect(page.getByRole('button', { name: 'Sign out' }).isVisible()).resolves.toBe(true);
+      await screenshot(page, 'coach-overview-narrow-menu');
+      await page.getByRole('link', { name: 'Sessions' }).click();
+      await page.waitForURL(/\/sessions/);
+      // Going to another screen closes the menu.
+      await expect(toggle.getAttribute('aria-expanded')).resolves.toBe('false');
+      await screenshot(page, 'coach-sessions-narrow');
     });
   });
 

@@ -127,6 +127,10 @@ describe('client hosting', () => {
     mkdirSync(join(dir, 'assets'));
     writeFileSync(join(dir, 'index.html'), '<!doctype html><title>Arcwright</title><div id="app"></div>');
     writeFileSync(join(dir, 'assets', 'app-1234.js'), 'console.log(1)');
+    // Large enough (over 1 KiB) for the server to compress.
+    writeFileSync(join(dir, 'assets', 'index-5678.js'), 'export const figures = [' + '"carry", "apex", '.repeat(200) + '];');
+    writeFileSync(join(dir, 'assets', 'index-5678.css'), '.report { margin: 0 auto; }\n'.repeat(100));
+    writeFileSync(join(dir, 'assets', 'frame-9abc.jpg'), Buffer.alloc(4096, 0xff));
     return dir;
   }
 
@@ -143,6 +147,55 @@ describe('client hosting', () => {
     const res = await request(testApp({ clientDir: builtClient() })).get('/assets/app-1234.js');
     expect(res.status).toBe(200);
     expect(res.headers['cache-control']).toContain('immutable');
+  });
+
+  it('sends index.html with no-cache so that a new build is picked up at once', async () => {
+    const res = await request(testApp({ clientDir: builtClient() })).get('/sessions');
+    expect(res.status).toBe(200);
+    expect(res.headers['cache-control']).toBe('no-cache');
+  });
+
+  it('compresses scripts and styles with brotli or gzip as the browser accepts', async () => {
+    const app = testApp({ clientDir: builtClient() });
+    const br = await request(app).get('/assets/index-5678.js').set('Accept-Encoding', 'br');
+    expect(br.status).toBe(200);
+    expect(br.headers['content-encoding']).toBe('br');
+    expect(br.headers['vary']).toMatch(/Accept-Encoding/i);
+    expect(br.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    expect(br.text).toContain('"carry", "apex"');
+
+    const gzip = await request(app).get('/assets/index-5678.css').set('Accept-Encoding', 'gzip, deflate');
+    expect(gzip.headers['content-encoding']).toBe('gzip');
+    expect(gzip.text).toContain('.report { margin: 0 auto; }');
+
+    const plain = await request(app).get('/assets/index-5678.js').set('Accept-Encoding', 'identity');
+    expect(plain.headers['content-encoding']).toBeUndefined();
+  });
+
+  it('leaves pictures uncompressed (they are compressed already)', async () => {
+    const res = await request(testApp({ clientDir: builtClient() })).get('/assets/frame-9abc.jpg').set('Accept-Encoding', 'br, gzip');
+    expect(res.status).toBe(200);
+    expect(res.headers['content-encoding']).toBeUndefined();
+    expect(res.headers['cache-control']).toContain('immutable');
+  });
+
+  it('compresses JSON answers of the API over 1 KiB and leaves small ones as they are', async () => {
+    const rows = Array.from({ length: 100 }, (_, i) => ({ id: i, carryM: 40 + i / 10, apexM: 12.5 }));
+    const app = testApp({
+      extraApiRoutes: (api) => {
+        api.get('/test-only/rows', (_req, res) => {
+          res.json({ data: rows });
+        });
+      },
+    });
+    const big = await request(app).get('/api/v1/test-only/rows').set('Accept-Encoding', 'gzip');
+    expect(big.status).toBe(200);
+    expect(big.headers['content-encoding']).toBe('gzip');
+    expect(big.body.data).toEqual(rows);
+
+    const small = await request(app).get('/api/v1/no-such-thing').set('Accept-Encoding', 'gzip');
+    expect(small.status).toBe(404);
+    expect(small.headers['content-encoding']).toBeUndefined();
   });
 
   it('explains how to build the client when it is missing', async () => {

@@ -1,19 +1,18 @@
 /**
- * The one place ECharts is configured: only the charts and components the screens use are registered,
- * which keeps the bundle small. Import `VChart` from here rather than from vue-echarts directly.
+ * The one place ECharts is configured: only the charts (line, scatter, heatmap) and components (grid, tooltip,
+ * plain legend, mark point and line, the heatmap's continuous visual map) the screens use are registered, which keeps the bundle
+ * small: register a new one here when a chart needs it. Import `VChart` from here rather than from vue-echarts directly.
  */
 import { use } from 'echarts/core';
 import { CanvasRenderer } from 'echarts/renderers';
 import { BarChart, HeatmapChart, LineChart, ScatterChart } from 'echarts/charts';
 import {
-  DataZoomComponent,
   GridComponent,
-  LegendComponent,
+  LegendPlainComponent,
   MarkLineComponent,
   MarkPointComponent,
-  TitleComponent,
   TooltipComponent,
-  VisualMapComponent,
+  VisualMapContinuousComponent,
 } from 'echarts/components';
 import VChart from 'vue-echarts';
 
@@ -25,12 +24,10 @@ use([
   HeatmapChart,
   GridComponent,
   TooltipComponent,
-  LegendComponent,
+  LegendPlainComponent,
   MarkPointComponent,
   MarkLineComponent,
-  VisualMapComponent,
-  DataZoomComponent,
-  TitleComponent,
+  VisualMapContinuousComponent,
 ]);
 
 /** Colours of PRODUCT.md's "Look" for charts. */

@@ -196,3 +196,18 @@ const WARNING_TITLES: Record<string, { title: string; tone: WarningTone }> = {
 export function warningView(code: string): { title: string; tone: WarningTone } {
   return WARNING_TITLES[code] ?? { title: 'Note on this fit', tone: 'caution' };
 }
+
+/**
+ * The figures a coach reads first (carry, launch speed and angle, apex, hang time), without their errors: the
+ * report opens with them, above the charts, so that a phone shows them without scrolling. The table keeps the errors.
+ */
+export function headlineFigures(r: FitResult, units: UnitSystem): MetricRow[] {
+  const f = r.flight;
+  return [
+    { key: 'carry', label: 'Carry', value: formatQuantity(f.carry, 'length', units) },
+    { key: 'launchSpeed', label: 'Launch speed', value: formatQuantity(r.launch.speed, 'speed', units) },
+    { key: 'launchAngle', label: 'Launch angle', value: formatNumberWithError(r.launch.angleDeg, null, 1, '°') },
+    { key: 'apexHeight', label: 'Apex', value: formatQuantity(f.apexHeight, 'length', units) },
+    { key: 'hangTime', label: 'Hang time', value: seconds(f.flightTime) },
+  ];
+}
