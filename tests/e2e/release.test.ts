@@ -8,13 +8,18 @@ import { DEMO_USERS, launchBrowser, screenshot, signIn, withPage } from './suppo
  * from the ground and saves the release.
  */
 
-/** The first demo clip that has a flight, found through the API with the page's session. */
+/** The first demo clip that has a flight and frames to trace, found through the API with the page's session. */
 async function demoClipWithFlight(page: Page): Promise<{ clubId: number; clipId: number }> {
   return page.evaluate(async () => {
     const me = (await (await fetch('/api/v1/auth/me')).json()) as { data: { memberships: { clubId: number }[] } };
     const clubId = me.data.memberships[0]!.clubId;
-    const flights = (await (await fetch(`/api/v1/clubs/${clubId}/flights`)).json()) as { data: { clipId: number }[] };
-    return { clubId, clipId: flights.data[0]!.clipId };
+    const flights = (await (await fetch(`/api/v1/clubs/${clubId}/flights?pageSize=200`)).json()) as { data: { clipId: number }[] };
+    // Most demo reps are seeded tracks without footage: take a clip whose frames are ready.
+    for (const clipId of new Set(flights.data.map((f) => f.clipId))) {
+      const clip = (await (await fetch(`/api/v1/clubs/${clubId}/clips/${clipId}`)).json()) as { data?: { framesReady?: boolean } };
+      if (clip.data?.framesReady) return { clubId, clipId };
+    }
+    throw new Error('No demo clip with frames: see test-results/e2e-server.log for the worker.');
   });
 }
 

@@ -36,7 +36,7 @@ async function clipWithFrames(page: Page): Promise<number | null> {
 }
 
 /** The screens a role opens from the rail and from one of the flights it may see. */
-function screensFor(role: Role, flight: { id: number; sessionId: number; clipId: number }, tracedClipId: number): Screen[] {
+function screensFor(role: Role, flight: { id: number; sessionId: number; clipId: number; athleteId: number }, tracedClipId: number): Screen[] {
   const screens: Screen[] = [
     { name: 'overview', path: '/' },
     { name: 'sessions', path: '/sessions' },
@@ -49,7 +49,13 @@ function screensFor(role: Role, flight: { id: number; sessionId: number; clipId:
     { name: 'progress', path: '/progress' },
     { name: 'planner', path: '/planner' },
   ];
-  if (role !== 'athlete') screens.push({ name: 'trace', path: `/clips/${tracedClipId}/trace` }, { name: 'squad', path: '/squad' });
+  if (role === 'athlete') screens.push({ name: 'my-flights', path: '/my-flights' });
+  else
+    screens.push(
+      { name: 'trace', path: `/clips/${tracedClipId}/trace` },
+      { name: 'squad', path: '/squad' },
+      { name: 'athlete', path: `/squad/athletes/${flight.athleteId}` },
+    );
   if (role === 'admin') screens.push({ name: 'club', path: '/club' }, { name: 'billing', path: '/billing' });
   return screens;
 }
