@@ -291,6 +291,8 @@ export async function run(): Promise<void> {
     HOST,
     PORT: String(port),
     FAKES: '0',
+    // Production refuses the local OAuth stand-in's URLs; the bench signs in with a password only.
+    GOOGLE_SIGNIN: '0',
     WORKERS_IN_WEB: '0',
     LOG_LEVEL: 'warn',
     SESSION_SECRET: 'bench-only-session-secret-not-for-production',
