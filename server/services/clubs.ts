@@ -99,7 +99,8 @@ export async function getOverview(clubCtx: ClubContext): Promise<ClubOverview> {
       group: ['role'],
       raw: true,
     }) as unknown as Promise<{ role: Role; n: number | string }[]>,
-    clubCtx.role === 'athlete' ? Promise.resolve(clubCtx.athleteProfileId === null ? 0 : 1) : AthleteProfile.count({ where: { clubId: clubCtx.id } }),
+    // An athlete sees one profile: their own.
+    Promise.resolve(clubCtx.athleteProfileId === null ? 0 : 1),
     // Each resource counts what the caller may see of it (an athlete: their own).
     countSessions(clubCtx),
     countClips(clubCtx),

@@ -31,7 +31,8 @@ export function toFitSummary(fit: Fit): FitSummary {
   };
 }
 
-function releaseOf(value: unknown): FitSummary['release'] {
+/** A fit result's release as the summary shows it (null for results without one). */
+export function releaseOf(value: unknown): FitSummary['release'] {
   if (!value || typeof value !== 'object') return null;
   const r = value as { mode?: unknown; backFrames?: unknown };
   if (r.mode !== 'first-point' && r.mode !== 'time' && r.mode !== 'height') return null;

@@ -27,6 +27,7 @@ import type { JobSummary } from '../../shared/schemas/clip';
 import { AthleteProfile, Clip, Flight, FlightAction } from '../models';
 import { checkFlightBall } from './balls';
 import { currentCalibration, toCalibrationDto } from './calibration';
+import { releaseOf } from './fits';
 import { enqueueRefits } from './refits';
 import { pointsOf } from './tracks';
 import { findVisibleClip, findVisibleFlight, findVisibleFlightWithClip, flightScope } from './visibility';
@@ -164,10 +165,7 @@ function fitSummaryOf(row: FlightListRow): FitSummary | null {
     cd: finiteOrNull(row.fitCd),
     cdError: finiteOrNull(row.fitCdError),
     standardCarryM: finiteOrNull(row.fitStandardCarry),
-    release:
-      row.fitReleaseMode === 'first-point' || row.fitReleaseMode === 'time' || row.fitReleaseMode === 'height'
-        ? { mode: row.fitReleaseMode, backFrames: finiteOrNull(row.fitReleaseBackFrames) }
-        : null,
+    release: releaseOf({ mode: row.fitReleaseMode, backFrames: finiteOrNull(row.fitReleaseBackFrames) }),
     warnings,
   };
 }
