@@ -2,8 +2,9 @@
  * The one Sequelize instance (MariaDB dialect, with optional read replicas: see `db-routing.ts`) and a transaction helper.
  * Models are initialised on it by `server/models/index.ts`; the schema changes only through migrations.
  */
-import { Sequelize, type Options, type Transaction } from 'sequelize';
+import { Sequelize, Transaction, type Options } from 'sequelize';
 import { config } from './config';
+import { isLockConflict } from './db-errors';
 import { installReadRouting } from './db-routing';
 import { log } from './logger';
 
@@ -48,9 +49,38 @@ export const sequelize = new Sequelize(
 );
 installReadRouting(sequelize);
 
-/** Runs `work` in a managed transaction: committed when it resolves, rolled back when it throws. */
-export function withTransaction<T>(work: (transaction: Transaction) => Promise<T>): Promise<T> {
-  return sequelize.transaction(work);
+export interface TransactionOptions {
+  /**
+   * READ COMMITTED takes no gap locks, so writers that delete and re-insert the rows of *different*
+   * parents (the points of two flights, the calibrations of two clips) do not deadlock on the gap between
+   * them; the default is the server's REPEATABLE READ.
+   */
+  readCommitted?: boolean;
+  /** Runs after a lost lock conflict, before `work` runs again (undo what `work` did outside the database). */
+  beforeRetry?: () => Promise<void> | void;
+}
+
+/** How often a transaction that lost a lock conflict runs again before the conflict reaches the caller. */
+export const LOCK_CONFLICT_RETRIES = 4;
+
+/**
+ * Runs `work` in a managed transaction: committed when it resolves, rolled back when it throws. A
+ * transaction that loses a deadlock or a lock wait runs again (up to LOCK_CONFLICT_RETRIES times, after a
+ * short random pause), so `work` must do nothing outside the database that cannot be repeated, or undo it
+ * in `beforeRetry`.
+ */
+export async function withTransaction<T>(work: (transaction: Transaction) => Promise<T>, options: TransactionOptions = {}): Promise<T> {
+  const settings = options.readCommitted ? { isolationLevel: Transaction.ISOLATION_LEVELS.READ_COMMITTED } : {};
+  for (let attempt = 0; ; attempt += 1) {
+    try {
+      return await sequelize.transaction(settings, work);
+    } catch (err) {
+      if (!isLockConflict(err) || attempt >= LOCK_CONFLICT_RETRIES) throw err;
+      log.debug('A transaction lost a lock conflict; running it again', { attempt: attempt + 1 });
+      await options.beforeRetry?.();
+      await new Promise((resolve) => setTimeout(resolve, 5 + Math.random() * 20 * 2 ** attempt));
+    }
+  }
 }
 
 /**

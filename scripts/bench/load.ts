@@ -41,6 +41,13 @@ async function loadClip(): Promise<{ path: string; truth: FlightTruth }> {
   return { path, truth: await readTruth(`${path}.truth.json`) };
 }
 
+/** Distinct texts with their counts, most frequent first (at most ten). */
+function tallyOf(texts: string[]): [string, number][] {
+  const counts = new Map<string, number>();
+  for (const t of texts) counts.set(t, (counts.get(t) ?? 0) + 1);
+  return [...counts.entries()].sort((a, b) => b[1] - a[1]).slice(0, 10);
+}
+
 interface Tally {
   timings: Map<string, number[]>;
   errors: string[];
@@ -121,8 +128,13 @@ export async function run(): Promise<void> {
   const tally: Tally = { timings: new Map(), errors: [], rounds: 0 };
   try {
     const clip = await loadClip();
-    // Every simulated coach signs up from 127.0.0.1: the per-address sign-up cap is raised to let them all in.
-    app = await benchApp(db, { WORKERS_IN_WEB: '1', LOG_LEVEL: 'warn', SIGNUP_RATE_LIMIT_MAX: String(USERS + 10) });
+    // Every simulated coach signs up and signs in from 127.0.0.1: the per-address caps are raised to let them all in.
+    app = await benchApp(db, {
+      WORKERS_IN_WEB: '1',
+      LOG_LEVEL: 'warn',
+      SIGNUP_RATE_LIMIT_MAX: String(USERS + 10),
+      SIGNIN_ADDRESS_RATE_LIMIT_MAX: String(USERS + 10),
+    });
     const started = Date.now();
     const until = started + SECONDS * 1000;
     console.log(`${USERS} users for ${SECONDS} s against ${app.base}`);
@@ -141,6 +153,9 @@ export async function run(): Promise<void> {
       const p = percentiles(list);
       console.log(`${route.padEnd(44)} ${String(p.n).padStart(6)} ${p.p50.toFixed(0).padStart(8)} ${p.p95.toFixed(0).padStart(8)} ${p.max.toFixed(0).padStart(8)}`);
     }
+    // The app's own account of its failures (log level error and above), so a failed run says why.
+    const failures = app.proc.logLines().filter((l) => Number(l.level) >= 50);
+    for (const [text, count] of tallyOf(failures.map((l) => `${String(l.msg).replace(/\d+/g, ':id')} ${String(l.cause ?? String(l.stack ?? '').split('\n')[0])}`.trim()))) console.log(`  app logged: ${text} (×${count})`);
     console.log(tally.errors.length === 0 ? 'RESULT load: ok (0 errors)' : 'RESULT load: FAILED');
     if (tally.errors.length > 0) process.exitCode = 1;
   } finally {

@@ -5,6 +5,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { BaseError as SequelizeError, ConnectionError, UniqueConstraintError } from 'sequelize';
 import type { ErrorCode } from '../../shared/errors';
+import { isLockConflict } from '../db-errors';
 import { log } from '../logger';
 import { ApiError } from './errors';
 
@@ -99,6 +100,10 @@ function knownError(err: unknown): ApiError | null {
     if (code === 'LIMIT_FILE_SIZE') return new ApiError('PAYLOAD_TOO_LARGE', 'The file is larger than this server accepts. Trim the clip or upload fewer frames.');
     return new ApiError('BAD_REQUEST', `The upload could not be read (${err.message}). Send the file in the form field the page uses.`);
   }
+  if (isLockConflict(err)) {
+    // Still losing after the transaction helper's retries: another request was saving the same records.
+    return new ApiError('CONFLICT', 'Another change to the same records was being saved at the same moment. Try again in a moment.');
+  }
   if (err instanceof UniqueConstraintError) {
     return new ApiError('CONFLICT', 'This would duplicate a record that already exists. Reload the page and try again.');
   }
@@ -122,7 +127,9 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, next) => {
     return;
   }
   const stack = err instanceof Error ? err.stack : String(err);
-  log.error(`${req.method} ${req.originalUrl} failed`, { requestId: req.requestId, stack });
+  // Sequelize's errors often carry an empty message of their own; the driver's says what went wrong.
+  const cause = (err as { original?: { message?: unknown } } | null)?.original?.message;
+  log.error(`${req.method} ${req.originalUrl} failed`, { requestId: req.requestId, stack, ...(typeof cause === 'string' && cause ? { cause } : {}) });
   res.status(500).json({
     error: {
       code: 'INTERNAL',

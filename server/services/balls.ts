@@ -13,7 +13,7 @@ import {
   type ClubBallInput,
   type ClubBallPatch,
 } from '../../shared/schemas/ball';
-import { sequelize } from '../db';
+import { withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { ClubBall, Flight } from '../models';
@@ -82,7 +82,7 @@ function nameTaken(name: string): ApiError {
 
 export async function createClubBall(club: ClubContext, input: ClubBallInput): Promise<ClubBallDto> {
   try {
-    const ball = await sequelize.transaction(async (transaction) => {
+    const ball = await withTransaction(async (transaction) => {
       await checkName(club, input.name, null, transaction);
       return ClubBall.create(
         { clubId: club.id, name: input.name, massKg: input.massKg, diameterM: input.diameterM, cdMin: input.cdMin ?? null, cdMax: input.cdMax ?? null },
@@ -102,7 +102,7 @@ export async function createClubBall(club: ClubContext, input: ClubBallInput): P
  */
 export async function patchClubBall(club: ClubContext, id: number, patch: ClubBallPatch): Promise<ClubBallDto & { refitJobIds: number[] }> {
   try {
-    const { ball, jobIds } = await sequelize.transaction(async (transaction) => {
+    const { ball, jobIds } = await withTransaction(async (transaction) => {
       const ball = await findBall(club, id, transaction);
       if (patch.name !== undefined && patch.name !== ball.name) await checkName(club, patch.name, ball.id, transaction);
       const next = {
@@ -135,7 +135,7 @@ export async function patchClubBall(club: ClubContext, id: number, patch: ClubBa
 
 /** Deletes a club ball no flight uses; a used one stays (its flights need its mass and size). */
 export async function deleteClubBall(club: ClubContext, id: number): Promise<void> {
-  await sequelize.transaction(async (transaction) => {
+  await withTransaction(async (transaction) => {
     const ball = await findBall(club, id, transaction);
     const used = await Flight.count({ where: { clubId: club.id, ballId: clubBallId(ball.id) }, transaction });
     if (used > 0) {

@@ -11,10 +11,10 @@ import {
   type CalibrationInput,
   type PixelPoint,
 } from '../../shared/schemas/calibration';
-import { sequelize } from '../db';
+import { withTransaction } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { Calibration, type Clip } from '../models';
+import { Calibration, Clip } from '../models';
 import { resolveFlightBall } from './balls';
 import { enqueueRefits } from './refits';
 import { findVisibleClip } from './visibility';
@@ -108,15 +108,17 @@ export async function setCalibration(club: ClubContext, clipId: number, input: C
   const clip = await findVisibleClip(club, clipId);
   checkNear(clip, input);
   const values = await calibrationValues(club.id, input);
-  const { cal, jobIds } = await sequelize.transaction(async (transaction) => {
-    await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });
-    const created = await Calibration.create(
-      { clubId: club.id, clipId: clip.id, input, ...values, supersededAt: null },
-      { transaction },
-    );
-    const ids = await enqueueRefits(club.id, { clipId: clip.id }, transaction);
-    return { cal: created, jobIds: ids };
-  });
+  const { cal, jobIds } = await withTransaction(
+    async (transaction) => {
+      // The clip's row is locked first so that two new calibrations of one clip take turns.
+      await Clip.findByPk(clip.id, { transaction, lock: transaction.LOCK.UPDATE });
+      await Calibration.update({ supersededAt: new Date() }, { where: { clipId: clip.id, supersededAt: null }, transaction });
+      const created = await Calibration.create({ clubId: club.id, clipId: clip.id, input, ...values, supersededAt: null }, { transaction });
+      const ids = await enqueueRefits(club.id, { clipId: clip.id }, transaction);
+      return { cal: created, jobIds: ids };
+    },
+    { readCommitted: true },
+  );
   return { ...toCalibrationDto(cal), refitJobIds: jobIds };
 }
 

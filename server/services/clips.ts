@@ -10,7 +10,7 @@ import { Op, QueryTypes } from 'sequelize';
 import type { ErrorCode } from '../../shared/errors';
 import type { Clip as ClipDto, ClipListQuery, ClipPatch, ClipStatus, ClipUploadFields, JobSummary } from '../../shared/schemas/clip';
 import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
-import { sequelize } from '../db';
+import { sequelize, withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { enqueue } from '../jobs/queue';
@@ -352,7 +352,7 @@ async function keep(club: ClubContext, sessionId: number, input: KeepInput) {
 /** Corrects the label or the capture rate; a new rate re-times every flight, so fitted flights are refitted. */
 export async function patchClip(club: ClubContext, clipId: number, patch: ClipPatch): Promise<ClipDto> {
   const clip = await findVisibleClip(club, clipId);
-  await sequelize.transaction(async (transaction) => {
+  await withTransaction(async (transaction) => {
     const rateChanged = patch.captureFps !== undefined && patch.captureFps !== clip.captureFps;
     if (patch.label !== undefined) clip.label = patch.label;
     if (patch.captureFps !== undefined) {
@@ -367,7 +367,7 @@ export async function patchClip(club: ClubContext, clipId: number, patch: ClipPa
 
 /** Deletes a clip with its flights (confirmation needed when it has some), then its files. */
 export async function deleteClip(club: ClubContext, clipId: number, confirm: boolean): Promise<void> {
-  await sequelize.transaction(async (transaction) => {
+  await withTransaction(async (transaction) => {
     const clip = await Clip.findOne({ where: { id: clipId, clubId: club.id }, transaction, lock: transaction.LOCK.UPDATE });
     if (!clip) throw notFound('clip');
     const [row] = await sequelize.query<{ n: number }>('SELECT COUNT(*) AS n FROM flights WHERE clip_id = :id', {

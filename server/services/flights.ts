@@ -20,7 +20,7 @@ import {
   type FlightStatus,
 } from '../../shared/schemas/flight';
 import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
-import { sequelize } from '../db';
+import { sequelize, withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import type { JobSummary } from '../../shared/schemas/clip';
@@ -444,7 +444,7 @@ async function checkReleaseFrame(flightId: number | null, releaseFrame: number, 
 
 export async function createFlight(club: ClubContext, clipId: number, input: FlightInput): Promise<FlightDto> {
   const clip = await findVisibleClip(club, clipId);
-  const flight = await sequelize.transaction(async (transaction) => {
+  const flight = await withTransaction(async (transaction) => {
     await checkAthlete(club.id, input.athleteId, transaction);
     await checkAction(club.id, input.action, transaction);
     await checkFlightBall(club.id, input.ballId, transaction);
@@ -475,7 +475,7 @@ export async function createFlight(club: ClubContext, clipId: number, input: Fli
 const REVIEW_FROM: FlightStatus[] = ['fitted', 'needs_attention'];
 
 export async function patchFlight(club: ClubContext, flightId: number, patch: FlightPatch): Promise<FlightDto> {
-  await sequelize.transaction(async (transaction) => {
+  await withTransaction(async (transaction) => {
     const { flight, clip } = await findVisibleFlightWithClip(club, flightId, transaction);
     if (patch.athleteId !== undefined) {
       await checkAthlete(club.id, patch.athleteId, transaction);

@@ -4,7 +4,7 @@
  */
 import { Op, type WhereOptions } from 'sequelize';
 import type { Job as JobDto, JobSummary } from '../../shared/schemas/clip';
-import { sequelize } from '../db';
+import { withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { requeueFailed } from '../jobs/queue';
@@ -70,7 +70,7 @@ export async function listJobs(club: ClubContext, query: { clipId?: number; flig
  */
 export async function retryJob(club: ClubContext, jobId: number): Promise<JobDto> {
   const job = await findJob(club, jobId);
-  await sequelize.transaction(async (transaction) => {
+  await withTransaction(async (transaction) => {
     const ok = await requeueFailed(job.id, transaction);
     if (!ok) {
       throw new ApiError('CONFLICT', `Only a failed job can be retried; this one is ${job.status}. Reload to see its state.`);

@@ -5,7 +5,7 @@
 import { Op, QueryTypes, type WhereOptions } from 'sequelize';
 import { CONDITION_KEYS, type Conditions, type Session as SessionDto, type SessionInput, type SessionListQuery, type SessionPatch } from '../../shared/schemas/session';
 import { pageOffset, type PageMeta } from '../../shared/schemas/pagination';
-import { sequelize } from '../db';
+import { sequelize, withTransaction } from '../db';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { log } from '../logger';
@@ -116,7 +116,7 @@ export async function updateSession(club: ClubContext, sessionId: number, patch:
   if (patch.venue !== undefined) session.venue = patch.venue;
   if (patch.notes !== undefined) session.notes = patch.notes ?? null;
   Object.assign(session, conditionValues(patch.conditions));
-  await sequelize.transaction(async (transaction) => {
+  await withTransaction(async (transaction) => {
     await session.save({ transaction });
     if (before !== JSON.stringify(conditionsOf(session))) await enqueueRefits(club.id, { sessionId: session.id, onlyFitted: true }, transaction);
   });
@@ -129,7 +129,7 @@ export async function updateSession(club: ClubContext, sessionId: number, patch:
  * then removes the clips' files. A session holding flights goes only with `confirm`.
  */
 export async function deleteSession(club: ClubContext, sessionId: number, confirm: boolean): Promise<void> {
-  const clipIds = await sequelize.transaction(async (transaction) => {
+  const clipIds = await withTransaction(async (transaction) => {
     const session = await Session.findOne({ where: { id: sessionId, clubId: club.id }, transaction, lock: transaction.LOCK.UPDATE });
     if (!session) throw notFound('session');
     const [counts] = await sequelize.query<{ clips: number; flights: number }>(

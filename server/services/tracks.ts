@@ -13,7 +13,7 @@ import type {
 import { csvDocument } from '../../shared/exports/csv';
 import { parseTrackCsv, TrackCsvError } from '../../shared/tracks/csv';
 import { fromSi, unitColumn, type UnitSystem } from '../../shared/units';
-import { sequelize } from '../db';
+import { withTransaction } from '../db';
 import { ApiError } from '../http/errors';
 import type { ClubContext } from '../http/types';
 import { enqueue } from '../jobs/queue';
@@ -91,7 +91,7 @@ async function writePoints(flight: Flight, points: TrackPointInput[], transactio
 }
 
 export async function replacePoints(club: ClubContext, flightId: number, points: TrackPointInput[]): Promise<TrackPointDto[]> {
-  return sequelize.transaction(async (transaction) => {
+  return withTransaction(async (transaction) => {
     const { flight, clip } = await findVisibleFlightWithClip(club, flightId, transaction);
     const fields: Record<string, string> = {};
     points.forEach((p, i) => {
@@ -102,18 +102,18 @@ export async function replacePoints(club: ClubContext, flightId: number, points:
     if (names.length > 0) throw new ApiError('VALIDATION_FAILED', fields[names[0]!]!, fields);
     await writePoints(flight, points, transaction);
     return pointsOf(flight, clip, await currentCalibration(clip.id, transaction), transaction);
-  });
+  }, { readCommitted: true });
 }
 
 /** Stores auto-follow points from `fromFrame` on (earlier points stay), inside the flight's range. Used by the flight.follow job. */
 export async function storeFollowedPoints(flightId: number, fromFrame: number, points: TrackPointInput[]): Promise<number> {
-  return sequelize.transaction(async (transaction) => {
+  return withTransaction(async (transaction) => {
     const flight = await Flight.findByPk(flightId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!flight) return 0;
     const kept = points.filter((p) => p.frame >= fromFrame && p.frame >= flight.frameStart && p.frame <= flight.frameEnd);
     await writePoints(flight, kept, transaction, fromFrame);
     return kept.length;
-  });
+  }, { readCommitted: true });
 }
 
 function csvError(err: TrackCsvError): ApiError {
@@ -128,7 +128,7 @@ export async function importCsv(club: ClubContext, flightId: number, text: strin
     if (err instanceof TrackCsvError) throw csvError(err);
     throw err;
   }
-  return sequelize.transaction(async (transaction) => {
+  return withTransaction(async (transaction) => {
     const { flight, clip } = await findVisibleFlightWithClip(club, flightId, transaction);
     const cal = await currentCalibration(clip.id, transaction);
     const rows: { line: number; column: string; point: TrackPointInput }[] = [];
@@ -171,7 +171,7 @@ export async function importCsv(club: ClubContext, flightId: number, text: strin
     }
     await writePoints(flight, rows.map((r) => r.point).sort((a, b) => a.frame - b.frame), transaction);
     return pointsOf(flight, clip, cal, transaction);
-  });
+  }, { readCommitted: true });
 }
 
 /**

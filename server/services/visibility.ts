@@ -53,7 +53,9 @@ export async function findVisibleClip(club: ClubContext, clipId: number, transac
 
 /** The flight if the caller may see it (an athlete: only their own), else 404. */
 export async function findVisibleFlight(club: ClubContext, flightId: number, transaction?: Transaction): Promise<Flight> {
-  const flight = await Flight.findOne({ where: { id: flightId, ...flightScope(club) }, transaction });
+  // Read inside a transaction, the flight is about to be written: its row is locked so that two writers of
+  // one flight (its points, its fields) take turns instead of interleaving.
+  const flight = await Flight.findOne({ where: { id: flightId, ...flightScope(club) }, transaction, ...(transaction ? { lock: transaction.LOCK.UPDATE } : {}) });
   if (!flight) throw notFound('flight');
   return flight;
 }

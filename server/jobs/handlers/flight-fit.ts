@@ -9,7 +9,7 @@ import { ENGINE_VERSION, fitFlight, FLIGHT_MODELS, type FitResult, type ModelCho
 import { BALL_CHECK_TOLERANCE } from '../../../shared/calibration/geometry';
 import type { BallCheck } from '../../../shared/schemas/calibration';
 import type { FitWarning } from '../../../shared/schemas/flight';
-import { sequelize } from '../../db';
+import { withTransaction } from '../../db';
 import { Fit, Flight, TrackPoint } from '../../models';
 import { loadFitInput } from '../../services/fit-input';
 import { JobFailure, type JobHandler } from '../types';
@@ -78,7 +78,7 @@ export const flightFitHandler: JobHandler = {
       points: points.length,
     };
 
-    const fit = await sequelize.transaction(async (transaction) => {
+    const fit = await withTransaction(async (transaction) => {
       const current = await Flight.findByPk(flight.id, { transaction, lock: transaction.LOCK.UPDATE });
       if (!current) throw new JobFailure('The flight was deleted while it was being fitted.', 'FLIGHT_GONE');
       const created = await Fit.create(

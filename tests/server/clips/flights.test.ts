@@ -125,6 +125,21 @@ describe('flights API', () => {
     expect((await Flight.findByPk(id))?.status).toBe('uploaded');
   });
 
+  it('saves the points of many flights at once, and of one flight from two writers, without a lock conflict reaching the coach', async () => {
+    const ids = await Promise.all(Array.from({ length: 8 }, () => newFlight({ frameStart: 2, frameEnd: 30 })));
+    const track = (shift: number) => Array.from({ length: 12 }, (_, i) => ({ frame: 3 + i, xPx: 20 + i * 5 + shift, yPx: 200 - i * 4 }));
+    // Every flight written twice at the same moment: the rounds interleave deletes and inserts of neighbouring flights' rows.
+    const answers = await Promise.all(ids.flatMap((id) => [0, 1].map((shift) => fx.coach.put(clubPath(fx, `/flights/${id}/points`), { points: track(shift) }))));
+    expect(answers.map((a) => a.status)).toEqual(answers.map(() => 200));
+    for (const id of ids) {
+      const points = await TrackPoint.findAll({ where: { flightId: id }, order: [['frame', 'ASC']] });
+      expect(points.map((p) => p.frame)).toEqual(track(0).map((p) => p.frame));
+      // One writer's track whole, never a mixture of the two.
+      const shift = points[0]!.xPx - 20;
+      expect(points.map((p) => p.xPx)).toEqual(track(shift).map((p) => p.xPx));
+    }
+  });
+
   it('refuses two points on one frame, a point outside the range and a point off the picture, keeping the old points', async () => {
     const id = await newFlight({ frameStart: 10, frameEnd: 20 });
     await fx.coach.put(clubPath(fx, `/flights/${id}/points`), { points: [{ frame: 12, xPx: 50, yPx: 50 }] });
