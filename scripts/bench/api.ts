@@ -297,7 +297,9 @@ export async function run(): Promise<void> {
     LOG_LEVEL: 'warn',
     SESSION_SECRET: 'bench-only-session-secret-not-for-production',
   };
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+  // BENCH_CPU_PROF=DIR writes the app's CPU profile there (open it in Chrome's DevTools) to find where a request spends its time.
+  const profile = process.env.BENCH_CPU_PROF ? ['--cpu-prof', '--cpu-prof-dir', process.env.BENCH_CPU_PROF] : [];
+  const child = spawn(process.execPath, [...profile, '--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
   let output = '';
   child.stdout?.on('data', (d: Buffer) => (output += d.toString()));
   child.stderr?.on('data', (d: Buffer) => (output += d.toString()));

@@ -21,16 +21,6 @@ const BESTS_SHOWN = 8;
 /** Fewer fitted reps than this say nothing about consistency. */
 const MIN_CONSISTENCY_REPS = 3;
 
-/**
- * The newest fit of each flight of the club (the fit history keeps every refit; the latest one counts).
- * Note: grouped through the club's flights, so only the (flight_id, id) index of fits is read; a filter on
- * fits.club_id would fetch every wide fit row instead.
- */
-function latestFits(onlyAthlete: boolean): string {
-  const athlete = onlyAthlete ? 'AND lfl.athlete_profile_id = :athleteId' : '';
-  return `SELECT l.flight_id, MAX(l.id) AS id FROM flights lfl JOIN fits l ON l.flight_id = lfl.id WHERE lfl.club_id = :clubId ${athlete} GROUP BY l.flight_id`;
-}
-
 async function attention(clubId: number): Promise<StaffOverview['attention']> {
   const rows = await sequelize.query<OverviewAttentionItem & { total: number | string; updatedAt: Date }>(
     `SELECT f.id AS flightId, f.clip_id AS clipId, c.session_id AS sessionId, a.display_name AS athleteName, f.action,
@@ -58,8 +48,7 @@ async function processing(clubId: number): Promise<OverviewProcessingClip[]> {
   const rows = await sequelize.query<{ clipId: number; sessionId: number; label: string; progress: number | null; jobStatus: string | null }>(
     `SELECT c.id AS clipId, c.session_id AS sessionId, c.label, j.progress, j.status AS jobStatus
        FROM clips c
-       LEFT JOIN (SELECT clip_id, MAX(id) AS id FROM jobs WHERE club_id = :clubId AND type = 'clip.process' GROUP BY clip_id) lj ON lj.clip_id = c.id
-       LEFT JOIN jobs j ON j.id = lj.id
+       LEFT JOIN jobs j ON j.id = (SELECT MAX(lj.id) FROM jobs lj WHERE lj.clip_id = c.id AND lj.type = 'clip.process')
       WHERE c.club_id = :clubId AND c.status = 'processing'
       ORDER BY c.id ASC LIMIT 20`,
     { type: QueryTypes.SELECT, replacements: { clubId } },
@@ -128,7 +117,7 @@ async function latestSession(clubId: number, today: string): Promise<OverviewLat
        LEFT JOIN clips c ON c.session_id = s.id
        LEFT JOIN flights f ON f.clip_id = c.id
        LEFT JOIN athlete_profiles a ON a.id = f.athlete_profile_id
-       LEFT JOIN fits ft ON ft.flight_id = f.id AND ft.id = (SELECT MAX(l.id) FROM fits l WHERE l.flight_id = f.id)`,
+       LEFT JOIN fits ft ON ft.id = f.latest_fit_id`,
     { type: QueryTypes.SELECT, replacements: { clubId, today } },
   );
   const first = rows[0];
@@ -166,9 +155,8 @@ export async function personalBests(clubId: number, athleteId: number | null, li
        SELECT f.athlete_profile_id AS athleteId, a.display_name AS athleteName, f.action, f.id AS flightId,
               ft.standard_carry_m AS standardCarryM, DATE_FORMAT(s.date, '%Y-%m-%d') AS day,
               ROW_NUMBER() OVER (PARTITION BY f.athlete_profile_id, f.action ORDER BY ft.standard_carry_m DESC, f.id ASC) AS rn
-         FROM (${latestFits(athleteId !== null)}) lf
-         JOIN fits ft ON ft.flight_id = lf.flight_id AND ft.id = lf.id
-         JOIN flights f ON f.id = lf.flight_id
+         FROM flights f
+         JOIN fits ft ON ft.id = f.latest_fit_id
          JOIN clips c ON c.id = f.clip_id
          JOIN sessions s ON s.id = c.session_id
          JOIN athlete_profiles a ON a.id = f.athlete_profile_id
@@ -191,15 +179,21 @@ export async function personalBests(clubId: number, athleteId: number | null, li
  * The club's flights, fits, profiles and sessions as one change marker: any write that can move a personal
  * best (a new fit, a flight added, removed, retagged or reviewed, an athlete renamed, a session redated) changes it.
  */
-async function bestsVersion(clubId: number): Promise<string> {
+async function bestsVersion(clubId: number, bests: OverviewPersonalBest[] | null): Promise<string> {
+  // Every marker is one index step (no count over the club's flights): a flight added, retagged or reviewed
+  // moves the newest updated_at, a new fit the newest fit id, and a deleted flight matters only when it held
+  // one of the bests shown, which the count of those flights still present tells.
+  const shown = (bests ?? []).map((b) => b.flightId);
   const [row] = await sequelize.query<Record<string, unknown>>(
     `SELECT (SELECT MAX(id) FROM fits WHERE club_id = :clubId) AS fitMax,
-            (SELECT CONCAT(COUNT(*), '/', COALESCE(MAX(updated_at), '')) FROM flights WHERE club_id = :clubId) AS flights,
+            (SELECT MAX(updated_at) FROM flights WHERE club_id = :clubId) AS flightsAt,
+            (SELECT MAX(id) FROM flights WHERE club_id = :clubId) AS flightMax,
+            ${shown.length > 0 ? '(SELECT COUNT(*) FROM flights WHERE id IN (:shown))' : '0'} AS shownLeft,
             (SELECT MAX(updated_at) FROM athlete_profiles WHERE club_id = :clubId) AS athletesAt,
             (SELECT MAX(updated_at) FROM sessions WHERE club_id = :clubId) AS sessionsAt`,
-    { type: QueryTypes.SELECT, replacements: { clubId } },
+    { type: QueryTypes.SELECT, replacements: { clubId, shown } },
   );
-  return JSON.stringify(row ?? {});
+  return JSON.stringify({ ...row, shown });
 }
 
 const BESTS_CACHE_CLUBS = 500;
@@ -207,15 +201,15 @@ const bestsCache = new Map<number, { version: string; bests: OverviewPersonalBes
 
 /**
  * The club's recent personal bests, recomputed only when the club's data changed since the last Overview.
- * Note: finding the best of every athlete and action reads the newest fit of every flight (about 90 ms at
- * 10,000 flights on a 2-core machine); the change marker costs a few milliseconds, and each app process keeps
- * its own copy, which is right because the marker is read from the shared database every time.
+ * Note: finding the best of every athlete and action reads the newest fit of every flight, tens of
+ * milliseconds at 10,000 flights on a 2-core machine; the change marker costs a few index steps, and each app
+ * process keeps its own copy, which is right because the marker is read from the shared database every time.
  */
 async function clubPersonalBests(clubId: number): Promise<OverviewPersonalBest[]> {
-  const version = await bestsVersion(clubId);
   const hit = bestsCache.get(clubId);
-  if (hit && hit.version === version) return hit.bests;
+  if (hit && hit.version === (await bestsVersion(clubId, hit.bests))) return hit.bests;
   const bests = await personalBests(clubId, null, BESTS_SHOWN);
+  const version = await bestsVersion(clubId, bests);
   bestsCache.delete(clubId);
   bestsCache.set(clubId, { version, bests });
   if (bestsCache.size > BESTS_CACHE_CLUBS) bestsCache.delete(bestsCache.keys().next().value as number);
@@ -228,7 +222,7 @@ export async function getStaffOverview(clubId: number, now = new Date()): Promis
     attention(clubId),
     processing(clubId),
     latestSession(clubId, cal.today),
-    clubCautions(clubId, now),
+    clubCautions(clubId, now, cal),
     clubPersonalBests(clubId),
   ]);
   return {

@@ -114,8 +114,8 @@ export async function listThresholds(clubId: number): Promise<WorkloadThresholdD
 }
 
 /** Every youth of the club over a threshold today or this week, with their name (staff only). Three queries. */
-export async function clubCautions(clubId: number, now = new Date()): Promise<AthleteCaution[]> {
-  const cal = await clubCalendar(clubId, now);
+export async function clubCautions(clubId: number, now = new Date(), calendar?: ClubCalendar): Promise<AthleteCaution[]> {
+  const cal = calendar ?? (await clubCalendar(clubId, now));
   const thresholds = await listThresholds(clubId);
   if (thresholds.length === 0) return [];
   const youths = await AthleteProfile.findAll({

@@ -132,6 +132,13 @@ describe('overview: the staff’s start of the day', () => {
     const bests = (await staffOverview()).personalBests;
     expect(bests[0]).toMatchObject({ athleteId: otherId, flightId: beaten, standardCarryM: 55, day: '2026-05-09' });
     expect(bests).toHaveLength(2);
+    // The flight holding the best is deleted: the older best is back at once (the cached bests are not kept).
+    // On the real clock: a request under the test's clock would move the session's expiry into that past.
+    vi.useRealTimers();
+    expect((await f.coach.delete(`/api/v1/clubs/${f.clubId}/flights/${beaten}`)).status).toBe(204);
+    const after = (await staffOverview()).personalBests;
+    expect(after.find((b) => b.athleteId === otherId)).toMatchObject({ flightId: ids.oldBest, standardCarryM: 52 });
+    expect(after.some((b) => b.flightId === beaten)).toBe(false);
   });
 
   it('answers 403 to staff asking for My flights (their start is the Overview)', async () => {
