@@ -5,8 +5,9 @@
  * The store's reads and its touch are made cheaper for the signed-in path (every API request of a signed-in
  * user reads its session, and express-session touches it after every answer):
  * - `get` is one plain SELECT by primary key (no model instance) that also reads the signed-in user's row,
- *   handed to passport's deserializeUser of the same request (`takeSessionUser`), so that a signed-in
- *   request costs one round trip to the database less; an expired row counts as no session;
+ *   handed to passport's deserializeUser of the same request (`takeSessionUser`), with the user's clubs
+ *   and roles for `clubAccess()` (`club-roles.ts`), so that a signed-in club request costs two round trips
+ *   to the database less; an expired row counts as no session;
  * - `touch` writes the new expiry only when it moved by more than TOUCH_SLACK of the lifetime since the
  *   expiry this process last read or wrote, instead of an UPDATE per request. A session may so end up to
  *   that fraction of its lifetime earlier than a strict rolling expiry would end it.
@@ -19,6 +20,7 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import type { UnitsPreference } from '../../shared/units';
 import { config } from '../config';
 import { errorFields, log } from '../logger';
+import { rememberClubRoles } from './club-roles';
 
 const SequelizeStore = connectSessionSequelize(session.Store);
 
@@ -72,8 +74,19 @@ export function lightenStore<S extends session.Store & { touch: NonNullable<sess
 
   store.get = (sid, fn) => {
     sequelize
-      .query<{ data: string | null; expires: Date | null; userId: number | null; email: string | null; displayName: string | null; unitsPreference: UnitsPreference | null }>(
-        `SELECT s.data, s.expires, u.id AS userId, u.email, u.display_name AS displayName, u.units_preference AS unitsPreference
+      .query<{
+        data: string | null;
+        expires: Date | null;
+        userId: number | null;
+        email: string | null;
+        displayName: string | null;
+        unitsPreference: UnitsPreference | null;
+        clubs: unknown;
+      }>(
+        `SELECT s.data, s.expires, u.id AS userId, u.email, u.display_name AS displayName, u.units_preference AS unitsPreference,
+                (SELECT JSON_ARRAYAGG(JSON_ARRAY(m.club_id, m.role, p.id)) FROM memberships m
+                   LEFT JOIN athlete_profiles p ON p.club_id = m.club_id AND p.user_id = m.user_id
+                  WHERE m.user_id = u.id) AS clubs
            FROM auth_sessions s LEFT JOIN users u ON u.id = JSON_VALUE(s.data, '$.passport.user')
           WHERE s.sid = ?`,
         { type: QueryTypes.SELECT, replacements: [sid] },
@@ -90,7 +103,9 @@ export function lightenStore<S extends session.Store & { touch: NonNullable<sess
         if (data.passport?.user === undefined) handedOver.delete(sid);
         else {
           if (handedOver.size >= HAND_OVER_LIMIT) handedOver.clear();
-          handedOver.set(sid, row.userId === null ? null : { id: Number(row.userId), email: row.email ?? '', displayName: row.displayName ?? '', unitsPreference: row.unitsPreference ?? 'club' });
+          const user = row.userId === null ? null : { id: Number(row.userId), email: row.email ?? '', displayName: row.displayName ?? '', unitsPreference: row.unitsPreference ?? 'club' };
+          if (user) rememberClubRoles(user, row.clubs);
+          handedOver.set(sid, user);
         }
         fn(null, data);
       })

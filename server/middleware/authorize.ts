@@ -10,6 +10,7 @@
 import type { Request, RequestHandler } from 'express';
 import { ROLES, type Role } from '../../shared/types/api';
 import { ApiError, notFound, parseId } from '../http/errors';
+import { clubRoleOf } from '../http/club-roles';
 import type { ClubContext } from '../http/types';
 import { QueryTypes } from 'sequelize';
 import { sequelize } from '../db';
@@ -45,7 +46,9 @@ export function clubAccess(...roles: Role[]): RequestHandler {
   return async (req, _res, next) => {
     if (!req.user) throw new ApiError('UNAUTHENTICATED', 'Sign in to continue; your session may have ended.');
     const clubId = parseId(req.params.clubId, 'club');
-    const club = await loadClubContext(req.user.id, clubId);
+    // The clubs read with this request's session, else one query.
+    const known = clubRoleOf(req.user, clubId);
+    const club = known === undefined ? await loadClubContext(req.user.id, clubId) : known;
     if (!club) throw notFound('club');
     if (!roles.includes(club.role)) {
       const allowed = roles.map((r) => ROLE_WORDS[r]).join(' or ');

@@ -64,3 +64,20 @@ describe('members: removal', () => {
     expect(await Membership.findByPk(g.members.coach.membershipId)).not.toBeNull();
   });
 });
+
+describe('members: a changed role counts on the next request', () => {
+  it('lets a coach made athlete no longer write, and a coach made admin see the billing, at once', async () => {
+    const f = await createClubFixture(testApp());
+    const before = await f.coach.post(`/api/v1/clubs/${f.clubId}/sessions`, { date: '2026-05-09', venue: 'Fennick Vale lower pitch' });
+    expect(before.status).toBe(201);
+    expect((await f.coach.get(`/api/v1/clubs/${f.clubId}/billing`)).status).toBe(403);
+    const promoted = await f.admin.patch(`/api/v1/clubs/${f.clubId}/members/${f.members.coach.membershipId}`, { role: 'admin' });
+    expect(promoted.status).toBe(200);
+    expect((await f.coach.get(`/api/v1/clubs/${f.clubId}/billing`)).status).toBe(200);
+    const demoted = await f.admin.patch(`/api/v1/clubs/${f.clubId}/members/${f.members.coach.membershipId}`, { role: 'athlete' });
+    expect(demoted.status).toBe(200);
+    const after = await f.coach.post(`/api/v1/clubs/${f.clubId}/sessions`, { date: '2026-05-10', venue: 'Fennick Vale lower pitch' });
+    expect(after.status).toBe(403);
+    expect(after.body.error.message).toMatch(/you are an? athlete/);
+  });
+});
