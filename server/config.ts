@@ -5,6 +5,7 @@
  */
 import { existsSync } from 'node:fs';
 import { resolve } from 'node:path';
+import { availableParallelism } from 'node:os';
 
 // A `.env` in the working directory fills in variables the real environment does not set (Node's loader
 // never overrides), so CI and scripts can still pass their own values. ENV_FILE=none skips it.
@@ -77,6 +78,16 @@ const smtpFakePort = int('SMTP_FAKE_PORT', 4783);
 const publicUrl = str('PUBLIC_URL', '');
 const paymentFakePort = int('PAYMENT_FAKE_PORT', 4782);
 const dataDir = resolve(process.cwd(), str('DATA_DIR', '.data'));
+
+function webProcessCount(value: string | undefined): number {
+  if (value === undefined || value.trim() === '') return 1;
+  if (value.trim() === 'auto') return availableParallelism();
+  const n = Number(value);
+  if (!Number.isInteger(n) || n < 1 || n > 64) {
+    throw new Error(`WEB_PROCESSES="${value}" is not a number of processes: give a whole number from 1 to 64, or auto (one per core).`);
+  }
+  return n;
+}
 
 /** The development session secret; fine on loopback, replaced through SESSION_SECRET anywhere else. */
 export const DEFAULT_SESSION_SECRET = 'arcwright-local-session-secret-change-me';
@@ -225,6 +236,11 @@ export const config = {
     /** How often the web process removes expired resumable uploads. */
     resumableSweepMs: int('UPLOAD_SWEEP_MINUTES', 15) * 60 * 1000,
   },
+  /**
+   * Web processes on this machine sharing the port (`WEB_PROCESSES`, default 1; server/web-processes.ts). More
+   * than one lets the app use more than one core; `auto` takes one per core.
+   */
+  webProcesses: webProcessCount(process.env.WEB_PROCESSES),
   shutdown: {
     /**
      * On SIGTERM, how long requests in flight (uploads included) and running jobs may take before they are

@@ -1,7 +1,9 @@
 /**
  * The server process: check the database, apply pending migrations, listen, start background work.
  * SIGTERM or SIGINT drains it (see server/lifecycle.ts): readiness answers 503, requests in flight
- * finish within SHUTDOWN_GRACE_MS, running jobs finish or go back to the queue, then it exits.
+ * finish within SHUTDOWN_GRACE_MS, running jobs finish or go back to the queue, then it exits. With
+ * WEB_PROCESSES above 1 this process only migrates and then supervises that many web processes
+ * (server/web-processes.ts), each of which runs this file too.
  */
 import { createApp } from './app';
 import { startBackgroundWork, stopBackgroundWork } from './background';
@@ -12,6 +14,7 @@ import { errorFields, log } from './logger';
 import { migrateUp } from './migrate';
 import { assertSafeConfiguration } from './startup-checks';
 import { prepareStorage } from './storage';
+import { isForkedWebProcess, runsBackgroundWork, runWebProcesses } from './web-processes';
 
 /** Time after the grace period for the last steps (closing the pool) before the hard exit. */
 const HARD_EXIT_MARGIN_MS = 5_000;
@@ -19,8 +22,14 @@ const HARD_EXIT_MARGIN_MS = 5_000;
 async function main(): Promise<void> {
   assertSafeConfiguration(config);
   await checkDatabase();
-  await migrateUp();
+  // A forked web process finds the migrations applied by its primary.
+  if (!isForkedWebProcess()) await migrateUp();
   await prepareStorage();
+  if (!isForkedWebProcess() && config.webProcesses > 1) {
+    await sequelize.close();
+    runWebProcesses(config.webProcesses, config.shutdown.graceMs);
+    return;
+  }
   const app = createApp();
   const server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {
@@ -31,11 +40,12 @@ async function main(): Promise<void> {
       } else reject(err);
     });
   });
-  log.info(`Arcwright listening on http://${config.host}:${config.port}`);
+  if (!isForkedWebProcess()) log.info(`Arcwright listening on http://${config.host}:${config.port}`);
+  else if (runsBackgroundWork()) log.info(`Arcwright listening on http://${config.host}:${config.port} (${config.webProcesses} web processes)`);
   if (config.session.secret === DEFAULT_SESSION_SECRET && !['127.0.0.1', 'localhost', '::1'].includes(config.host)) {
     log.warn('SESSION_SECRET is the built-in development value while the app listens beyond this machine: set a long random SESSION_SECRET.');
   }
-  await startBackgroundWork();
+  if (runsBackgroundWork()) await startBackgroundWork();
 
   let stopping = false;
   const stop = (reason: string, exitCode: number) => {

@@ -26,6 +26,8 @@ const HOST = '127.0.0.1';
 const DB_NAME = process.env.BENCH_DB_NAME ?? 'arcwright_bench_api';
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 20);
 const DURATION_S = Number(process.env.BENCH_SECONDS ?? 8);
+/** Web processes of the app under load (WEB_PROCESSES of server/web-processes.ts): one per core unless told. */
+const WEB_PROCESSES = process.env.BENCH_WEB_PROCESSES ?? 'auto';
 
 const FLIGHTS = 10_000;
 const POINTS_PER_FLIGHT = 15;
@@ -219,9 +221,8 @@ async function signIn(base: string): Promise<string> {
   return cookieOf(answer);
 }
 
-/** CPU seconds (user + system) a process has used so far, from /proc (null where there is none). */
-function cpuSeconds(pid: number | undefined): number | null {
-  if (pid === undefined) return null;
+/** CPU seconds (user + system) one process has used so far, from /proc (null where there is none). */
+function ownCpuSeconds(pid: number): number | null {
   try {
     const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]!.split(' ');
     // utime and stime are fields 14 and 15 of the file (11 and 12 after the command name), in clock ticks of 1/100 s.
@@ -229,6 +230,20 @@ function cpuSeconds(pid: number | undefined): number | null {
   } catch {
     return null;
   }
+}
+
+/** CPU seconds of the app: its process and its web processes (WEB_PROCESSES above 1), from /proc. */
+function cpuSeconds(pid: number | undefined): number | null {
+  if (pid === undefined) return null;
+  const own = ownCpuSeconds(pid);
+  if (own === null) return null;
+  let children: number[] = [];
+  try {
+    children = readFileSync(`/proc/${pid}/task/${pid}/children`, 'utf8').trim().split(/\s+/).filter(Boolean).map(Number);
+  } catch {
+    // no children file: count the process alone
+  }
+  return children.reduce((sum, child) => sum + (ownCpuSeconds(child) ?? 0), own);
 }
 
 interface Figures {
@@ -280,6 +295,7 @@ export async function run(): Promise<void> {
   console.log(
     `club of ${FLIGHTS.toLocaleString('en')} flights, ${(FLIGHTS * POINTS_PER_FLIGHT).toLocaleString('en')} track points in "${DB_NAME}" ` +
       `(${seeded.reused ? 'reused' : 'seeded'} in ${seeded.seconds.toFixed(1)} s); ${CONNECTIONS} clients, ${DURATION_S} s per request; ` +
+      `app with WEB_PROCESSES=${WEB_PROCESSES} (BENCH_WEB_PROCESSES); ` +
       `load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores before the run (the figures hold only for a machine otherwise idle)`,
   );
 
@@ -294,6 +310,7 @@ export async function run(): Promise<void> {
     // Production refuses the local OAuth stand-in's URLs; the bench signs in with a password only.
     GOOGLE_SIGNIN: '0',
     WORKERS_IN_WEB: '0',
+    WEB_PROCESSES: WEB_PROCESSES,
     LOG_LEVEL: 'warn',
     SESSION_SECRET: 'bench-only-session-secret-not-for-production',
   };
