@@ -78,6 +78,14 @@ class BucketUploadStore extends S3Store {
     }
     return super.uploadPart(metadata, readStream, partNumber);
   }
+
+  /** Removes an upload (the protocol's termination) with the objects the store's own removal leaves: the tail of a part and the copy of the start. */
+  async remove(id: string): Promise<void> {
+    await super.remove(id);
+    await this.client.send(
+      new DeleteObjectsCommand({ Bucket: this.bucket, Delete: { Objects: [{ Key: `${id}.part` }, { Key: `${id}${HEAD_SUFFIX}` }], Quiet: true } }),
+    );
+  }
 }
 
 export class BucketPartialUploads implements PartialUploads {
