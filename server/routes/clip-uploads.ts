@@ -18,6 +18,7 @@ import { validationError } from '../middleware/validate';
 import { log } from '../logger';
 import { addressId, checkUploadCreation, checkUploadHead, expiredUpload, finishUpload, findOwnReceipt, findOwnUpload, metadataFields, uploadArea } from '../services/clip-uploads';
 import { tooLarge } from '../services/clips';
+import { uploadLocker } from '../services/upload-locks';
 
 const UPLOADS = '/clubs/:clubId/sessions/:sessionId/clips/uploads';
 const TUS_VERSION = '1.0.0';
@@ -42,6 +43,9 @@ function fromProtocolError(status: number, body: string): ApiError {
     return new ApiError('CONFLICT', 'This part does not start where the upload stands: ask for the offset (HEAD) and send the rest from there.');
   }
   if (body === ERRORS.ERR_MAX_SIZE_EXCEEDED.body || body === ERRORS.ERR_SIZE_EXCEEDED.body) return tooLarge(config.uploads.maxBytes);
+  if (body === ERRORS.ERR_LOCK_TIMEOUT.body) {
+    return new ApiError('UPLOAD_BUSY', 'Another request is sending a part of this upload right now. Ask for the offset (HEAD) in a moment and send the rest from there.');
+  }
   if (status === 404) return new ApiError('NOT_FOUND', 'No such upload here. Start the upload again.');
   if (status === 410) return expiredUpload();
   if (status >= 500 && status !== 501) {
@@ -58,6 +62,8 @@ async function tusServer(): Promise<Server> {
   const server = new Server({
     path: '/api/v1/clubs/uploads',
     datastore: area.store,
+    // Shared by every web process: the next part of an upload may come through any of them.
+    locker: uploadLocker(),
     maxSize: () => config.uploads.maxBytes,
     // Same origin only: no CORS headers.
     allowedOrigins: () => false,
