@@ -1,10 +1,12 @@
 /**
  * Scale bench (`npm run bench scale`): two web processes and three worker processes on 127.0.0.1 share the
  * private MariaDB (database `arcwright_bench_scale`, recreated) and an S3 fake (s3rver); 30 generated clips are
- * uploaded at once, alternately through both web processes, processed, and the ball in each auto-followed.
+ * uploaded at once as resumable uploads (tus), each started and half sent through one web process and finished
+ * through the other (no sticky sessions), then processed, and the ball in each auto-followed.
  * Then it checks that every clip was processed exactly once (one `clip.process` and one `flight.follow` job per
- * clip, each claimed once and done), that every clip's frames are in the bucket, and that no process left
- * anything in its scratch folder; and prints the wall time beside the same run with one worker.
+ * clip, each claimed once and done), that every clip's frames are in the bucket, that no upload left parts or an
+ * open multipart upload in the bucket, and that no process left anything in its scratch folder; and prints the
+ * wall time beside the same run with one worker.
  * Nothing here asserts a time. Ports: web 4862/4863, S3 fake 4865 (BENCH_SCALE_PORT_BASE / S3_FAKE_PORT move them).
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
@@ -12,6 +14,8 @@ import { existsSync } from 'node:fs';
 import { mkdir, mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
+import { ListMultipartUploadsCommand } from '@aws-sdk/client-s3';
+import { Metadata } from '@tus/server';
 import mariadb from 'mariadb';
 
 const CLIPS = Number(process.env.BENCH_SCALE_CLIPS ?? 30);
@@ -85,27 +89,36 @@ async function waitFor<T>(what: string, probe: () => Promise<T | null>, timeoutM
 }
 
 /** A signed-in member talking to any of the web processes (the session lives in the shared database). */
+interface FetchInit {
+  method?: string;
+  headers?: Record<string, string>;
+  json?: unknown;
+  form?: FormData;
+  bytes?: Buffer;
+}
+
 class Member {
   cookie = '';
   csrf = '';
 
-  async fetch(base: string, path: string, init: { method?: string; json?: unknown; form?: FormData } = {}): Promise<Response> {
-    const headers: Record<string, string> = {};
+  async fetch(base: string, path: string, init: FetchInit = {}): Promise<Response> {
+    const headers: Record<string, string> = { ...init.headers };
     if (this.cookie) headers.cookie = this.cookie;
     const method = init.method ?? 'GET';
     if (method !== 'GET') headers['x-csrf-token'] = this.csrf;
-    let body: string | FormData | undefined;
+    let body: string | FormData | Buffer | undefined;
     if (init.json !== undefined) {
       headers['content-type'] = 'application/json';
       body = JSON.stringify(init.json);
     } else if (init.form) body = init.form;
+    else if (init.bytes) body = init.bytes;
     const res = await fetch(`${base}${path}`, { method, headers, body });
     const set = res.headers.getSetCookie();
     if (set.length > 0) this.cookie = set.map((c) => c.split(';')[0]).join('; ');
     return res;
   }
 
-  async data<T>(base: string, path: string, init: { method?: string; json?: unknown; form?: FormData } = {}, expected = [200, 201, 202]): Promise<T> {
+  async data<T>(base: string, path: string, init: FetchInit = {}, expected = [200, 201, 202]): Promise<T> {
     const res = await this.fetch(base, path, init);
     const text = await res.text();
     if (!expected.includes(res.status)) throw new Error(`${init.method ?? 'GET'} ${path} answered ${res.status}: ${text.slice(0, 400)}`);
@@ -115,6 +128,23 @@ class Member {
   async refreshCsrf(base: string): Promise<void> {
     this.csrf = (await this.data<{ csrfToken: string }>(base, '/api/v1/auth/csrf')).csrfToken;
   }
+}
+
+const TUS = { 'Tus-Resumable': '1.0.0' };
+
+/**
+ * A resumable upload (tus) started and half sent through `first`, finished through `second`: the app's answer to
+ * the last part (the clip and its job).
+ */
+async function resumableUpload(member: Member, first: string, second: string, path: string, bytes: Buffer, meta: Record<string, string>) {
+  const created = await member.fetch(first, path, { method: 'POST', headers: { ...TUS, 'Upload-Length': String(bytes.length), 'Upload-Metadata': Metadata.stringify(meta) } });
+  if (created.status !== 201) throw new Error(`starting an upload answered ${created.status}: ${(await created.text()).slice(0, 400)}`);
+  const location = created.headers.get('location')!;
+  const half = Math.floor(bytes.length / 2);
+  const part = (offset: number, to: number) => ({ method: 'PATCH', headers: { ...TUS, 'Upload-Offset': String(offset), 'Content-Type': 'application/offset+octet-stream' }, bytes: bytes.subarray(offset, to) });
+  const sent = await member.fetch(first, location, part(0, half));
+  if (sent.status !== 204) throw new Error(`the first half of an upload answered ${sent.status}: ${(await sent.text()).slice(0, 400)}`);
+  return member.data<{ clip: { id: number }; job: { id: number } }>(second, location, part(Number(sent.headers.get('upload-offset')), bytes.length));
 }
 
 interface RunResult {
@@ -176,10 +206,9 @@ async function runOnce(workers: number, clips: BenchClip[], s3Endpoint: string, 
     const started = Date.now();
     const uploads = await Promise.all(
       clips.map(async (clip, i) => {
-        const form = new FormData();
-        form.set('label', `Kick ${i + 1}`);
-        form.set('video', new Blob([await readFile(clip.videoPath)], { type: 'video/mp4' }), `kick-${i + 1}.mp4`);
-        const kept = await coach.data<{ clip: { id: number }; job: { id: number } }>(bases[i % 2]!, `/api/v1/clubs/${clubId}/sessions/${session.id}/clips`, { method: 'POST', form });
+        const uploadsPath = `/api/v1/clubs/${clubId}/sessions/${session.id}/clips/uploads`;
+        const meta = { filename: `kick-${i + 1}.mp4`, label: `Kick ${i + 1}` };
+        const kept = await resumableUpload(coach, bases[i % 2]!, bases[(i + 1) % 2]!, uploadsPath, await readFile(clip.videoPath), meta);
         return { clipId: kept.clip.id, jobId: kept.job.id, clip, base: bases[(i + 1) % 2]! };
       }),
     );
@@ -258,6 +287,10 @@ async function verify(clubId: number, clipIds: number[], followJobIds: number[],
       const keys = await store.list(`clubs/${clubId}/clips/${c.id}/frames`);
       if (keys.length !== Number(c.frame_count) + 1) problems.push(`clip ${c.id}: ${keys.length} objects for ${c.frame_count} frames and a strip`);
     }
+    const leftParts = (await store.list('partial-uploads')).filter((key) => !key.endsWith('.kept'));
+    if (leftParts.length > 0) problems.push(`${leftParts.length} objects of unfinished uploads left in the bucket: ${leftParts.slice(0, 3).join(', ')}`);
+    const open = await store.client.send(new ListMultipartUploadsCommand({ Bucket: bucket, Prefix: 'partial-uploads/' }));
+    if ((open.Uploads ?? []).length > 0) problems.push(`${open.Uploads!.length} multipart uploads left open in the bucket`);
     await rm(scratch, { recursive: true, force: true });
     for (const p of procs) {
       const left = await readdir(join(p.scratch, '.work')).catch(() => [] as string[]);
@@ -265,7 +298,13 @@ async function verify(clubId: number, clipIds: number[], followJobIds: number[],
     }
     const spread = [...byWorker.entries()].map(([w, n]) => `${w.replace(/@.*/, '')}…${w.slice(-4)}: ${n}`).join(', ');
     if (problems.length > 0) throw new Error(`Scale bench found problems:\n  ${problems.join('\n  ')}`);
-    return [`${rows.length} jobs, each claimed once and done`, `${clips.length} clips with all frames in the bucket`, 'scratch folders empty', `jobs per worker: ${spread}`];
+    return [
+      `${rows.length} jobs, each claimed once and done`,
+      `${clips.length} clips with all frames in the bucket`,
+      'no parts or multipart uploads of resumable uploads left in the bucket',
+      'scratch folders empty',
+      `jobs per worker: ${spread}`,
+    ];
   } finally {
     await conn.end();
   }
@@ -292,7 +331,7 @@ export async function run(): Promise<void> {
       for (const line of result.checks) console.log(`  ✓ ${line}`);
       results.push(result);
     }
-    console.log(`\n${CLIPS} clips uploaded at once through 2 web processes, processed and auto-followed (S3 fake, MariaDB ${DB_NAME}):`);
+    console.log(`\n${CLIPS} clips uploaded at once (resumable, each half through either web process), processed and auto-followed (S3 fake, MariaDB ${DB_NAME}):`);
     console.log('workers | processing s | following s | wall s');
     for (const r of results) console.log(`${String(r.workers).padStart(7)} | ${r.processS.toFixed(1).padStart(12)} | ${r.followS.toFixed(1).padStart(11)} | ${r.wallS.toFixed(1).padStart(6)}`);
     const [many, one] = results;

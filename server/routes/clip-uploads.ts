@@ -8,7 +8,7 @@
  * before the protocol; each upload belongs to the member who started it.
  */
 import { Router, type Request, type Response } from 'express';
-import { ERRORS, Metadata, Server, type Upload } from '@tus/server';
+import { ERRORS, Metadata, Server, Uid, type Upload } from '@tus/server';
 import { NodeRequest } from 'srvx/node';
 import { config } from '../config';
 import { discardBody } from '../http/discard-body';
@@ -16,8 +16,9 @@ import { ApiError, parseId } from '../http/errors';
 import { clubAccess, clubOf } from '../middleware/authorize';
 import { validationError } from '../middleware/validate';
 import { log } from '../logger';
-import { checkUploadCreation, checkUploadHead, expiredUpload, finishUpload, findOwnReceipt, findOwnUpload, metadataFields, partialUploadStore } from '../services/clip-uploads';
+import { addressId, checkUploadCreation, checkUploadHead, expiredUpload, finishUpload, findOwnReceipt, findOwnUpload, metadataFields, uploadArea } from '../services/clip-uploads';
 import { tooLarge } from '../services/clips';
+import { uploadLocker } from '../services/upload-locks';
 
 const UPLOADS = '/clubs/:clubId/sessions/:sessionId/clips/uploads';
 const TUS_VERSION = '1.0.0';
@@ -42,6 +43,9 @@ function fromProtocolError(status: number, body: string): ApiError {
     return new ApiError('CONFLICT', 'This part does not start where the upload stands: ask for the offset (HEAD) and send the rest from there.');
   }
   if (body === ERRORS.ERR_MAX_SIZE_EXCEEDED.body || body === ERRORS.ERR_SIZE_EXCEEDED.body) return tooLarge(config.uploads.maxBytes);
+  if (body === ERRORS.ERR_LOCK_TIMEOUT.body) {
+    return new ApiError('UPLOAD_BUSY', 'Another request is sending a part of this upload right now. Ask for the offset (HEAD) in a moment and send the rest from there.');
+  }
   if (status === 404) return new ApiError('NOT_FOUND', 'No such upload here. Start the upload again.');
   if (status === 410) return expiredUpload();
   if (status >= 500 && status !== 501) {
@@ -50,20 +54,24 @@ function fromProtocolError(status: number, body: string): ApiError {
   return new ApiError('BAD_REQUEST', `The upload request was refused: ${body.trim()} Use a client of the tus protocol ${TUS_VERSION}, as the upload page does.`);
 }
 
-let tus: { store: unknown; server: Server } | null = null;
+let tus: { area: unknown; server: Server } | null = null;
 
 async function tusServer(): Promise<Server> {
-  const store = await partialUploadStore();
-  if (tus?.store === store) return tus.server;
+  const area = await uploadArea();
+  if (tus?.area === area) return tus.server;
   const server = new Server({
     path: '/api/v1/clubs/uploads',
-    datastore: store,
+    datastore: area.store,
+    // Shared by every web process: the next part of an upload may come through any of them.
+    locker: uploadLocker(),
     maxSize: () => config.uploads.maxBytes,
     // Same origin only: no CORS headers.
     allowedOrigins: () => false,
     // The address of an upload is the creation address plus its id (relative; clients resolve it).
-    generateUrl: (req, { id }) => `${expressRequest(req).originalUrl.split('?')[0]!.replace(/\/+$/, '')}/${id}`,
-    getFileIdFromRequest: (_req, lastPath) => lastPath,
+    generateUrl: (req, { id }) => `${expressRequest(req).originalUrl.split('?')[0]!.replace(/\/+$/, '')}/${addressId(id)}`,
+    // The store's id of an upload may differ from the one in its address (a bucket keeps it under a folder).
+    namingFunction: () => area.storeId(Uid.rand()),
+    getFileIdFromRequest: (_req, lastPath) => (lastPath ? area.storeId(lastPath) : lastPath),
     onUploadCreate: async (req) => ({ metadata: creationMetadata.get(expressRequest(req)) }),
     onUploadFinish: async (req, upload: Upload) => {
       const express = expressRequest(req);
@@ -89,7 +97,7 @@ async function tusServer(): Promise<Server> {
       return protocolError(fromProtocolError(status, body));
     },
   });
-  tus = { store, server };
+  tus = { area, server };
   return server;
 }
 

@@ -1,48 +1,42 @@
 /**
- * Resumable video uploads (the tus protocol, `@tus/file-store`): the rules around the protocol. An upload is
- * started by an admin or coach for one session of their club, may arrive in any number of parts, and, once
- * its last byte is in, becomes a clip through the same `acceptUpload` as a multipart upload. Its bytes wait
- * in the storage's partial-uploads folder; an upload left unfinished expires and its bytes go.
+ * Resumable video uploads (the tus protocol): the rules around the protocol. An upload is started by an admin or
+ * coach for one session of their club, may arrive in any number of parts, and, once its last byte is in, becomes
+ * a clip through the same `acceptUpload` as a multipart upload. Its bytes wait where the storage keeps uploads in
+ * progress (`partialUploads()`: the local partial-uploads folder, or the bucket with the S3 driver, where any web
+ * process can take the next part); an upload left unfinished expires and its bytes go.
  */
-import { readFile, readdir, rename, rm, stat, writeFile } from 'node:fs/promises';
+import { rm } from 'node:fs/promises';
 import { join } from 'node:path';
-import { FileStore } from '@tus/file-store';
 import { ERRORS, type Upload } from '@tus/server';
 import { clipUploadFieldsSchema, type ClipUploadFields } from '../../shared/schemas/clip';
 import { config } from '../config';
 import { ApiError, notFound } from '../http/errors';
 import type { ClubContext } from '../http/types';
-import { storage } from '../storage';
-import { checkVideoHead, isVideoError, readHead } from '../video';
+import { partialUploads, storage, type PartialUploads } from '../storage';
+import { checkVideoHead, isVideoError } from '../video';
 import { acceptUpload, assertCaptureRateGiven, tooLarge } from './clips';
 import { assertClubCanRecord } from './subscriptions';
 import { findVisibleSession } from './visibility';
 
 /** Metadata keys the server writes itself at creation; a client's own values under these names are replaced. */
 const OWNER_KEYS = ['clubId', 'sessionId', 'userId'] as const;
-/** Bytes needed before the start of an upload can be recognised (as `readHead` reads them). */
+/** Bytes needed before the start of an upload can be recognised (as the video module's `readHead` reads them). */
 const HEAD_BYTES = 4096;
-/** Upload ids as `@tus/server` names them: 16 random bytes in hex. */
+/** Upload ids in addresses: 16 random bytes in hex, as `@tus/server` names them. */
 const UPLOAD_ID = /^[0-9a-f]{32}$/;
 
-/** A file store whose expiry follows the configuration at the time it is asked (tests shorten it). */
-class PartialUploadStore extends FileStore {
-  getExpiration(): number {
-    return config.uploads.resumableExpiryMs;
-  }
-}
-
-let current: { dir: string; store: PartialUploadStore } | null = null;
-
-/** The store of the current storage's partial-uploads folder (it follows `setStorage`). */
-export async function partialUploadStore(): Promise<FileStore> {
-  const dir = await storage().partialUploadsDir();
-  if (current?.dir !== dir) current = { dir, store: new PartialUploadStore({ directory: dir }) };
-  return current.store;
+/** Where the current storage keeps uploads in progress (it follows `setStorage`). */
+export function uploadArea(): Promise<PartialUploads> {
+  return partialUploads();
 }
 
 export function isUploadId(id: string): boolean {
   return UPLOAD_ID.test(id);
+}
+
+/** The id in the address of an upload, from the id its store knows it by (`partial-uploads/<id>` in a bucket). */
+export function addressId(storeId: string): string {
+  return storeId.slice(storeId.lastIndexOf('/') + 1);
 }
 
 /** The clip fields of a multipart upload, read from an upload's metadata (`label`, `slowMotion`, `captureFps`). */
@@ -116,10 +110,10 @@ export async function checkUploadCreation(
  */
 export async function findOwnUpload(club: ClubContext, userId: number, sessionId: number, uploadId: string): Promise<Upload> {
   if (!isUploadId(uploadId)) throw notFound('upload');
-  const store = await partialUploadStore();
+  const area = await uploadArea();
   let upload: Upload;
   try {
-    upload = await store.getUpload(uploadId);
+    upload = await area.store.getUpload(area.storeId(uploadId));
   } catch (err) {
     if (err === ERRORS.FILE_NOT_FOUND || err === ERRORS.FILE_NO_LONGER_EXISTS) throw notFound('upload');
     throw err;
@@ -147,22 +141,21 @@ export function expiredUpload(): ApiError {
  * so that a wrong file is not sent in full before it is refused.
  */
 export async function checkUploadHead(upload: Upload): Promise<void> {
-  if (upload.offset < Math.min(HEAD_BYTES, upload.size ?? HEAD_BYTES) || !upload.storage?.path) return;
+  if (upload.offset < Math.min(HEAD_BYTES, upload.size ?? HEAD_BYTES)) return;
+  const head = await (await uploadArea()).readHead(upload, HEAD_BYTES);
+  if (!head) return;
   try {
-    checkVideoHead(await readHead(upload.storage.path), upload.storage.path);
+    checkVideoHead(head, upload.metadata?.filename ?? 'upload');
   } catch (err) {
     if (!isVideoError(err)) throw err;
-    await removeUpload(upload.id);
+    await removeUpload(addressId(upload.id));
     throw new ApiError(err.apiCode === 'UNPROCESSABLE' ? 'MEDIA_UNREADABLE' : err.apiCode, err.message, { video: err.message });
   }
 }
 
 /** Removes an upload's bytes and its record, and its receipt with `receipt: true` (nothing happens for what is gone). */
 export async function removeUpload(uploadId: string, options: { receipt?: boolean } = {}): Promise<void> {
-  if (!isUploadId(uploadId)) return;
-  const dir = await storage().partialUploadsDir();
-  const names = [uploadId, `${uploadId}.json`, ...(options.receipt ? [`${uploadId}${RECEIPT_SUFFIX}`] : [])];
-  await Promise.all(names.map((name) => rm(join(dir, name), { force: true })));
+  await (await uploadArea()).remove(uploadId, options);
 }
 
 /**
@@ -180,31 +173,21 @@ export interface UploadReceipt {
   keptAt: string;
 }
 
-const RECEIPT_SUFFIX = '.kept';
-
-async function readJson<T>(path: string): Promise<T | null> {
-  try {
-    return JSON.parse(await readFile(path, 'utf8')) as T;
-  } catch {
-    return null;
-  }
-}
-
 async function writeReceipt(uploadId: string, receipt: UploadReceipt): Promise<void> {
-  await writeFile(join(await storage().partialUploadsDir(), `${uploadId}${RECEIPT_SUFFIX}`), JSON.stringify(receipt));
+  await (await uploadArea()).writeReceipt(uploadId, receipt);
 }
 
 /** The receipt of an upload of the caller's that has finished (or is being kept right now), else null. */
 export async function findOwnReceipt(club: ClubContext, userId: number, sessionId: number, uploadId: string): Promise<UploadReceipt | null> {
   if (!isUploadId(uploadId)) return null;
-  const receipt = await readJson<UploadReceipt>(join(await storage().partialUploadsDir(), `${uploadId}${RECEIPT_SUFFIX}`));
+  const receipt = await (await uploadArea()).readReceipt<UploadReceipt>(uploadId);
   if (!receipt || receipt.clubId !== String(club.id) || receipt.sessionId !== String(sessionId) || receipt.userId !== String(userId)) return null;
   return receipt;
 }
 
 /**
- * Turns a complete upload into a clip: its file moves into a work folder (the upload is gone from then on,
- * whatever the outcome) and goes through `acceptUpload`, which checks it, keeps it and queues its processing.
+ * Turns a complete upload into a clip: its file moves into a work folder (fetched from the bucket with the S3
+ * driver; the upload is gone from then on, whatever the outcome) and goes through `acceptUpload`, which checks it, keeps it and queues its processing.
  * A receipt says "being kept" meanwhile and names the clip afterwards; a refused upload leaves none.
  */
 export async function finishUpload(club: ClubContext, sessionId: number, upload: Upload) {
@@ -212,53 +195,29 @@ export async function finishUpload(club: ClubContext, sessionId: number, upload:
   const fields = metadataFields(meta);
   if (!fields.success) throw new Error(`Upload ${upload.id} holds fields that were checked at its creation and no longer parse.`);
   const sizeBytes = upload.size ?? upload.offset;
+  const id = addressId(upload.id);
   const receipt: UploadReceipt = { clubId: String(club.id), sessionId: String(sessionId), userId: meta.userId ?? '', sizeBytes, clipId: null, jobId: null, keptAt: new Date().toISOString() };
-  await writeReceipt(upload.id, receipt);
+  await writeReceipt(id, receipt);
   const workDir = await storage().workDir('upload');
   const path = join(workDir, 'part-0');
   try {
-    try {
-      await rename(upload.storage?.path ?? join(await storage().partialUploadsDir(), upload.id), path);
-    } finally {
-      await removeUpload(upload.id);
-    }
+    await (await uploadArea()).takeOut(upload, path);
     const result = await acceptUpload(club, sessionId, { fields: fields.data, video: [{ path, originalName: meta.filename ?? 'video', sizeBytes }], frames: [], workDir }, config.uploads.maxBytes);
-    await writeReceipt(upload.id, { ...receipt, clipId: result.clip.id, jobId: result.job.id });
+    await writeReceipt(id, { ...receipt, clipId: result.clip.id, jobId: result.job.id });
     return result;
   } catch (err) {
     await rm(workDir, { recursive: true, force: true });
-    await removeUpload(upload.id, { receipt: true });
+    await removeUpload(id, { receipt: true });
     throw err;
   }
 }
 
 /**
- * Removes what expired in the partial-uploads folder: unfinished uploads (from their creation), receipts (from
- * the time their clip was kept), and bytes or records left without their other half (from the file's time).
- * Returns how many uploads went. Note: FileStore's own deleteExpired lists only uploads whose bytes and record are
- * both there, and stops at the first it cannot remove; hence this walk of the folder.
+ * Removes what expired where uploads wait: unfinished uploads (from their creation), receipts (from the time their
+ * clip was kept), and leftovers of either. Returns how many uploads went.
  */
 export async function sweepExpiredUploads(): Promise<number> {
-  const expiry = config.uploads.resumableExpiryMs;
-  if (expiry <= 0) return 0;
-  const dir = await storage().partialUploadsDir();
-  const ids = new Set((await readdir(dir)).map((name) => name.slice(0, 32)).filter(isUploadId));
-  let removed = 0;
-  for (const id of ids) {
-    const receipt = await readJson<UploadReceipt>(join(dir, `${id}${RECEIPT_SUFFIX}`));
-    const record = await readJson<{ creation_date?: string }>(join(dir, `${id}.json`));
-    let since = Date.parse(receipt?.keptAt ?? record?.creation_date ?? '');
-    if (Number.isNaN(since)) {
-      const names = [id, `${id}.json`, `${id}${RECEIPT_SUFFIX}`];
-      const times = await Promise.all(names.map((name) => stat(join(dir, name)).then((info) => info.mtimeMs, () => Number.NaN)));
-      since = Math.max(...times.filter((t) => !Number.isNaN(t)));
-    }
-    if (Date.now() > since + expiry) {
-      await removeUpload(id, { receipt: true });
-      removed++;
-    }
-  }
-  return removed;
+  return (await uploadArea()).sweep(config.uploads.resumableExpiryMs);
 }
 
 let sweeper: NodeJS.Timeout | null = null;

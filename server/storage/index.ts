@@ -5,12 +5,16 @@
  */
 import { config } from '../config';
 import { LocalDiskStorage } from './local-disk';
+import { DiskPartialUploads, type PartialUploads } from './partial-uploads';
+import { BucketPartialUploads } from './partial-uploads-s3';
 import { S3Storage } from './s3';
 import type { Storage } from './types';
 
 export { checkKey, type Storage, type StoredObject } from './types';
 export { LocalDiskStorage } from './local-disk';
 export { S3Storage, type S3StorageOptions } from './s3';
+export { DiskPartialUploads, type PartialUploads } from './partial-uploads';
+export { BucketPartialUploads, PARTIAL_PREFIX } from './partial-uploads-s3';
 
 let current: Storage | null = null;
 
@@ -31,6 +35,25 @@ export function storage(): Storage {
 export async function prepareStorage(): Promise<void> {
   const current = storage();
   if (current instanceof S3Storage && config.storage.s3.createBucket) await current.ensureBucket();
+}
+
+const partials = new WeakMap<Storage, Promise<PartialUploads>>();
+
+/**
+ * Where the current storage keeps resumable uploads in progress: the bucket with the S3 driver (so that any web
+ * process can take an upload's next part), else its local partial-uploads folder. It follows `setStorage`.
+ */
+export function partialUploads(): Promise<PartialUploads> {
+  const current = storage();
+  let area = partials.get(current);
+  if (!area) {
+    const expiryMs = () => config.uploads.resumableExpiryMs;
+    area = current instanceof S3Storage ? Promise.resolve(new BucketPartialUploads(current, expiryMs)) : current.partialUploadsDir().then((dir) => new DiskPartialUploads(dir, expiryMs));
+    // A failed start (a folder that cannot be made) is tried again on the next call.
+    area.catch(() => partials.delete(current));
+    partials.set(current, area);
+  }
+  return area;
 }
 
 /** Replaces the storage (tests point it at a temporary folder or a bucket of their own). */

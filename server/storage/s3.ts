@@ -4,8 +4,8 @@
  * Objects are written with `@aws-sdk/lib-storage`'s `Upload`: a small body goes up in one request, a large one
  * in parts (`partSizeBytes`, `queueSize` parts in flight), so at most `partSizeBytes * queueSize` of a file is in
  * memory at once, whatever its size. Reads stream the object's body. Tools that need a path (ffmpeg) get the
- * object downloaded into a private folder of the local scratch root, removed by `release`. Work folders and the
- * uploads received in parts also live in that local scratch root (never in the bucket).
+ * object downloaded into a private folder of the local scratch root, removed by `release`. Work folders also live
+ * in that local scratch root; resumable uploads in progress wait in the bucket (`partial-uploads-s3.ts`).
  */
 import { createReadStream, createWriteStream } from 'node:fs';
 import { readdir, rm } from 'node:fs/promises';
@@ -60,14 +60,17 @@ function isMissing(err: unknown): boolean {
 export class S3Storage implements Storage {
   readonly bucket: string;
   readonly client: S3Client;
+  /** The client's settings (endpoint, region, credentials, path style), for other clients of the same bucket. */
+  readonly clientConfig: S3ClientConfig;
+  /** Size of one part of a multipart upload. */
+  readonly partSizeBytes: number;
   private readonly scratch: string;
-  private readonly partSize: number;
   private readonly queueSize: number;
 
   constructor(options: S3StorageOptions) {
     this.bucket = options.bucket;
     this.scratch = resolve(options.scratchDir);
-    this.partSize = Math.max(MIN_PART_BYTES, options.partSizeBytes ?? 8 * 1024 * 1024);
+    this.partSizeBytes = Math.max(MIN_PART_BYTES, options.partSizeBytes ?? 8 * 1024 * 1024);
     this.queueSize = Math.max(1, options.queueSize ?? 4);
     const clientConfig: S3ClientConfig = {
       region: options.region,
@@ -82,6 +85,7 @@ export class S3Storage implements Storage {
     if (options.accessKeyId && options.secretAccessKey) {
       clientConfig.credentials = { accessKeyId: options.accessKeyId, secretAccessKey: options.secretAccessKey };
     }
+    this.clientConfig = clientConfig;
     this.client = new S3Client(clientConfig);
   }
 
@@ -107,7 +111,7 @@ export class S3Storage implements Storage {
     const upload = new Upload({
       client: this.client,
       params: { Bucket: this.bucket, Key: clean, Body: counted },
-      partSize: this.partSize,
+      partSize: this.partSizeBytes,
       queueSize: this.queueSize,
       // A failed multipart upload is aborted, so no parts stay behind in the bucket.
       leavePartsOnError: false,

@@ -35,9 +35,10 @@ export interface Storage {
   /** A fresh private local folder for uploads and work in progress; the caller removes it. */
   workDir(purpose: string): Promise<string>;
   /**
-   * The one local folder that holds uploads received in parts (resumable uploads) until they are complete.
-   * It outlives a restart of the process, unlike a work folder, so that a client can resume; on the same
-   * file system as the work folders, so a finished upload moves out by a rename.
+   * The one local folder that holds uploads received in parts (resumable uploads) on the local disk until they are
+   * complete. It outlives a restart of the process, unlike a work folder, so that a client can resume; on the same
+   * file system as the work folders, so a finished upload moves out by a rename. (With the S3 driver the uploads
+   * wait in the bucket instead: `partialUploads()` in `index.ts`.)
    */
   partialUploadsDir(): Promise<string>;
   /** The local folder holding every `workDir()` (for the sweep of folders left by a killed process). */

@@ -17,5 +17,7 @@ declare module 's3rver' {
     close(): Promise<void>;
     reset(): void;
     httpServer?: Server;
+    /** Koa's middleware list, composed when the server starts. */
+    middleware: unknown[];
   }
 }

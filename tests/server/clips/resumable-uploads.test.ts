@@ -1,16 +1,16 @@
 import { mkdtemp, readFile, rm, utimes, writeFile } from 'node:fs/promises';
 import type { Server as HttpServer } from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Metadata } from '@tus/server';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { config } from '../../../server/config';
 import { sweepExpiredUploads } from '../../../server/services/clip-uploads';
-import { makeBadFiles, type BadFiles } from '../../../server/video/synth';
-import { createClubFixture, type ApiClient, type ClubFixture } from '../../support/app';
-import { httpSession, streamedRequest, type HttpSession } from '../../support/http-session';
-import { clipRowCount, clubPath, createSession, flightClip, getJob, useTestStorage, type TestStorage } from './helpers';
+import type { BadFiles } from '../../../server/video/synth';
+import type { ApiClient, ClubFixture } from '../../support/app';
+import { httpSession, type HttpSession } from '../../support/http-session';
+import { clipRowCount, clubPath, createSession, getJob, useTestStorage, type TestStorage } from './helpers';
+import { TUS, cutPatch, patchAs, uploadFixture, waitForOffset } from './tus-helpers';
 import { testWorker } from './worker-helper';
 
 let fx: ClubFixture;
@@ -24,19 +24,11 @@ let base: string;
 let coach: HttpSession;
 const originalLimit = config.uploads.maxBytes;
 const originalExpiry = config.uploads.resumableExpiryMs;
-const TUS = { 'Tus-Resumable': '1.0.0' };
 
 beforeAll(async () => {
   store = await useTestStorage();
   dir = await mkdtemp(join(tmpdir(), 'arcwright-resumable-'));
-  fx = await createClubFixture();
-  sessionId = await createSession(fx.coach, fx.clubId);
-  const [files, clip] = await Promise.all([makeBadFiles(join(dir, 'bad')), flightClip(dir)]);
-  bad = files;
-  video = await readFile(clip.videoPath);
-  server = fx.app.listen(0, '127.0.0.1');
-  await new Promise<void>((resolve) => server.once('listening', resolve));
-  base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  ({ fx, sessionId, bad, video, server, base } = await uploadFixture(dir));
   coach = await httpSession(base, fx.members.coach.email);
   for (const client of [fx.admin, fx.coach, fx.athlete, fx.outsider, fx.anonymous]) await client.refreshCsrf();
 });
@@ -87,32 +79,16 @@ async function partialFiles(): Promise<string[]> {
   return (await store.files()).filter((f) => f.startsWith('.partial-uploads/'));
 }
 
-async function waitForOffset(location: string, atLeast: number): Promise<number> {
-  const until = Date.now() + 10_000;
-  for (;;) {
-    const offset = Number((await offsetOf(location)).headers.get('upload-offset'));
-    if (offset >= atLeast || Date.now() > until) return offset;
-    await new Promise((r) => setTimeout(r, 50));
-  }
-}
-
 describe('resumable clip uploads (tus)', () => {
   it('resumes an upload cut at 50 % from the offset the server reports, then keeps and processes the clip', async () => {
     const half = Math.floor(video.length / 2);
     const location = await startOverHttp(video.length, { filename: 'punt.mp4', label: 'Punt, cut at half' });
     expect(location).toMatch(new RegExp(`^${uploadsPath()}/[0-9a-f]{32}$`));
 
-    const cut = await streamedRequest(`${base}${location}`, {
-      method: 'PATCH',
-      headers: { ...TUS, 'Upload-Offset': '0', 'Content-Type': 'application/offset+octet-stream', cookie: coach.cookie, 'x-csrf-token': coach.csrfToken },
-      declaredBytes: video.length,
-      chunks: [video.subarray(0, half)],
-      between: () => new Promise((r) => setTimeout(r, 300)),
-      cut: true,
-    });
+    const cut = await cutPatch(`${base}${location}`, coach, video, half);
     expect(cut).toBeNull();
 
-    const offset = await waitForOffset(location, half);
+    const offset = await waitForOffset(() => offsetOf(location), half);
     expect(offset).toBe(half);
     const head = await offsetOf(location);
     expect(head.status).toBe(200);
@@ -282,13 +258,7 @@ describe('resumable clip uploads (tus)', () => {
       const viaOwnClub = `${uploadsPath(fx.otherClubId, outsiderSession)}/${id}`;
       expect((await fx.outsider.agent.head(viaOwnClub).set(TUS)).status).toBe(404);
       await fx.outsider.refreshCsrf();
-      const res = await fx.outsider.agent
-        .patch(viaOwnClub)
-        .set(TUS)
-        .set('X-CSRF-Token', fx.outsider.csrfToken!)
-        .set('Upload-Offset', '5000')
-        .set('Content-Type', 'application/offset+octet-stream')
-        .send(video.subarray(5000, 6000));
+      const res = await patchAs(fx.outsider, viaOwnClub, 5000, video.subarray(5000, 6000));
       expect(res.status).toBe(404);
       expect(res.body.error.code).toBe('NOT_FOUND');
       await offsetStays();
