@@ -17,6 +17,7 @@ export type TraceCommand =
   | { kind: 'zoomFit' }
   | { kind: 'zoomActual' }
   | { kind: 'jump' }
+  | { kind: 'keyMark' }
   | { kind: 'help' }
   | { kind: 'cancel' };
 
@@ -31,6 +32,8 @@ export interface KeyLike {
 
 /** Frames moved by Shift + arrow. */
 export const BIG_STEP = 10;
+/** Image pixels the keyboard cursor moves with Shift + arrow (1 without). */
+export const CURSOR_BIG_STEP = 10;
 
 export interface ShortcutHelp {
   keys: string;
@@ -43,15 +46,24 @@ export const SHORTCUT_HELP: readonly ShortcutHelp[] = [
   { keys: 'Shift + ← / →', does: `Back / forward ${BIG_STEP} frames` },
   { keys: 'Home / End', does: 'First / last frame' },
   { keys: '[ / ]', does: 'Previous / next marked frame' },
+  { keys: ', / .', does: 'Previous / next frame (also while marking by keys)' },
   { keys: 'G', does: 'Go to a frame number' },
   { keys: 'Click', does: 'Mark the ball centre' },
   { keys: 'Click + drag', does: 'Mark the centre and drag out the ball radius' },
+  { keys: 'M, or Enter on the frame', does: 'Mark by keys: a cursor on the frame' },
+  { keys: '← ↑ → ↓ (marking by keys)', does: `Move the cursor 1 px (Shift: ${CURSOR_BIG_STEP} px)` },
+  { keys: 'Enter (marking by keys)', does: "Mark the ball at the cursor (moves this frame's mark)" },
+  { keys: 'Esc (marking by keys)', does: 'Stop marking by keys (the arrows step frames again)' },
+  { keys: 'Tap', does: 'Mark the ball centre' },
+  { keys: 'Touch, hold, slide', does: 'Aim with the magnifier; lift to mark' },
+  { keys: 'Pinch / one- or two-finger drag', does: 'Zoom / pan' },
+  { keys: 'Nudge arrows', does: "Move this frame's mark 1 px" },
   { keys: 'Delete', does: 'Remove the mark on this frame' },
   { keys: 'Ctrl + Z / Ctrl + Shift + Z', does: 'Undo / redo' },
   { keys: 'Wheel', does: 'Zoom about the pointer' },
   { keys: '+ / − / 0 / 1', does: 'Zoom in / out / whole frame / actual pixels' },
   { keys: 'Space + drag, middle drag, Alt + drag', does: 'Pan' },
-  { keys: 'Esc', does: 'Leave calibration, close this help' },
+  { keys: 'Esc', does: 'Drop a line started, close this help' },
   { keys: '?', does: 'Show or hide this help' },
 ];
 
@@ -91,8 +103,14 @@ export function commandForKey(e: KeyLike): TraceCommand | null {
       return { kind: 'zoomFit' };
     case '1':
       return { kind: 'zoomActual' };
+    case ',':
+      return { kind: 'step', delta: -1 };
+    case '.':
+      return { kind: 'step', delta: 1 };
     case 'g':
       return { kind: 'jump' };
+    case 'm':
+      return { kind: 'keyMark' };
     case '?':
       return { kind: 'help' };
     case 'Escape':
