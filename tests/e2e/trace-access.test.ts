@@ -62,6 +62,37 @@ async function imageToPage(page: Page, p: Point): Promise<Point> {
   return { x: box.x + p.x * v.scale + v.offsetX, y: box.y + p.y * v.scale + v.offsetY };
 }
 
+/**
+ * What is wrong with the page's tab stops: a stop without a name, a stop hidden from sight (a stray input), a button
+ * or a role=button element inside another one.
+ */
+async function tabStopProblems(page: Page): Promise<string[]> {
+  return page.evaluate(() => {
+    const problems: string[] = [];
+    const focusable = [...document.querySelectorAll<HTMLElement>('a[href], button, input, select, textarea, [tabindex]')].filter(
+      (el) => el.tabIndex >= 0 && !(el as HTMLButtonElement).disabled && el.getClientRects().length > 0,
+    );
+    for (const el of focusable) {
+      const labelledBy = (el.getAttribute('aria-labelledby') ?? '')
+        .split(/\s+/)
+        .map((id) => document.getElementById(id)?.textContent ?? '')
+        .join(' ');
+      const labels = 'labels' in el ? [...((el as HTMLInputElement).labels ?? [])].map((l) => l.textContent ?? '').join(' ') : '';
+      const name = [el.getAttribute('aria-label'), labelledBy, labels, el.getAttribute('title'), el.getAttribute('placeholder'), el.textContent].join(' ').trim();
+      const box = el.getBoundingClientRect();
+      const what = `${el.tagName.toLowerCase()}${el.className ? `.${String(el.className).split(' ')[0]}` : ''}`;
+      if (!name) problems.push(`${what} has no name`);
+      // A PrimeVue switch lays its (named) input over the switch; anything else of a pixel or less is hidden.
+      if (box.width <= 1 || box.height <= 1 || getComputedStyle(el).visibility === 'hidden') problems.push(`${what} is in the tab order but not visible`);
+    }
+    if (focusable.length < 20) problems.push(`only ${focusable.length} tab stops found`);
+    for (const el of document.querySelectorAll('button button, button [role="button"], [role="button"] button, [role="button"] [role="button"]')) {
+      problems.push(`${el.tagName.toLowerCase()} "${el.textContent?.trim().slice(0, 40)}" is inside another button`);
+    }
+    return problems;
+  });
+}
+
 /** The clip's first flight with frames and marks in range, and a frame of it that holds a mark. */
 async function demoTarget(page: Page): Promise<{ flight: ApiFlight; frame: number }> {
   const flight = await waitForFittedDemoFlightWithFrames(page);
@@ -109,6 +140,8 @@ describe('Trace by keyboard and by finger', () => {
       await page.keyboard.press('Enter');
       await page.locator(`[data-flight-id="${flight.id}"].is-selected`).waitFor();
       await page.getByTestId('points-table').waitFor();
+      // Every stop in the tab order is visible and named, and no button sits inside another button.
+      expect(await tabStopProblems(page)).toEqual([]);
 
       // To the frame with G and the jump box, then step by keys on the viewer: → and . forward, , back.
       await page.keyboard.press('g');
@@ -157,13 +190,24 @@ describe('Trace by keyboard and by finger', () => {
       await page.keyboard.press('m');
       expect(await keyCursor(page)).not.toBeNull();
       await page.keyboard.press('Escape');
+      // The help lists the keys of marking by keys; Esc closes it.
+      await page.keyboard.press('?');
+      await expect(page.getByTestId('shortcuts-help').textContent()).resolves.toMatch(/Mark by keys.*Move the cursor 1 px.*Mark the ball at the cursor/);
+      await screenshot(page, 'trace-keys-02-help');
+      await page.keyboard.press('Escape');
+      await page.getByTestId('shortcuts-help').waitFor({ state: 'detached' });
 
       // The marks' rows: one tab stop, the arrows go from row to row and to their frames.
       await tabTo(page, '[data-testid="points-row"]');
-      const rowFrame = Number(await page.evaluate(() => document.activeElement?.getAttribute('data-frame')));
-      await page.keyboard.press('ArrowUp');
-      await expect.poll(() => frameNow(page)).toBeLessThan(rowFrame);
-      expect(await page.evaluate(() => document.activeElement?.getAttribute('aria-current'))).toBe('true');
+      const rowFrames = await page.getByTestId('points-row').evaluateAll((rows) => rows.map((r) => Number(r.getAttribute('data-frame'))));
+      await page.keyboard.press('Home');
+      await expect.poll(() => frameNow(page)).toBe(rowFrames[0]);
+      await page.keyboard.press('ArrowDown');
+      await expect.poll(() => frameNow(page)).toBe(rowFrames[1]);
+      expect(await page.evaluate(() => [document.activeElement?.getAttribute('data-frame'), document.activeElement?.getAttribute('aria-current')])).toEqual([
+        String(rowFrames[1]),
+        'true',
+      ]);
 
       // Save (the page's action), then the report.
       await tabTo(page, '[data-testid="primary-action"]', true);
