@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { baseUrl, DEMO_PASSWORD, DEMO_USERS, launchBrowser, screenshot, signIn, withPage } from './support/browser';
+import { baseUrl, DEMO_PASSWORD, DEMO_USERS, launchBrowser, screenshot, SCREENSHOT_DIR, signIn, withPage } from './support/browser';
 import { seriousViolations } from './support/axe';
 import { demoClubId, waitForFittedDemoFlightWithFrames, type ApiFlight } from './support/demo';
 
@@ -193,7 +193,8 @@ describe('Trace by keyboard and by finger', () => {
       // The help lists the keys of marking by keys; Esc closes it.
       await page.keyboard.press('?');
       await expect(page.getByTestId('shortcuts-help').textContent()).resolves.toMatch(/Mark by keys.*Move the cursor 1 px.*Mark the ball at the cursor/);
-      await screenshot(page, 'trace-keys-02-help');
+      // Not a full-page shot: resizing the page for one closes the popover.
+      await page.screenshot({ path: `${SCREENSHOT_DIR}/trace-keys-02-help.png` });
       await page.keyboard.press('Escape');
       await page.getByTestId('shortcuts-help').waitFor({ state: 'detached' });
 
