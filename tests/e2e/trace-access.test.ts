@@ -192,9 +192,11 @@ describe('Trace by keyboard and by finger', () => {
       await page.keyboard.press('Escape');
       // The help lists the keys of marking by keys; Esc closes it.
       await page.keyboard.press('?');
-      await expect(page.getByTestId('shortcuts-help').textContent()).resolves.toMatch(/Mark by keys.*Move the cursor 1 px.*Mark the ball at the cursor/);
-      // Not a full-page shot: resizing the page for one closes the popover.
+      await expect(page.getByTestId('shortcuts-help').textContent()).resolves.toMatch(/Marking by keys.*Move the cursor 1 px.*Mark the ball at the cursor/);
+      // Not a full-page shot: resizing the page for one closes the popover. After its fade-in.
+      await page.waitForTimeout(400);
       await page.screenshot({ path: `${SCREENSHOT_DIR}/trace-keys-02-help.png` });
+      expect(await seriousViolations(page)).toEqual([]);
       await page.keyboard.press('Escape');
       await page.getByTestId('shortcuts-help').waitFor({ state: 'detached' });
 
