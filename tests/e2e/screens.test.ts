@@ -1,8 +1,7 @@
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, signIn } from './support/browser';
+import { seriousViolations } from './support/axe';
 import { demoClubId, waitForFittedDemoFlight } from './support/demo';
 
 /**
@@ -11,7 +10,6 @@ import { demoClubId, waitForFittedDemoFlight } from './support/demo';
  * moved from screen to screen. Screenshots at 390 px: test-results/screenshots/phone-<role>-<screen>.png.
  */
 
-const AXE_SOURCE = readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
 const WIDTHS = { desktop: 1366, phone: 390, narrow: 360 } as const;
 
 type Role = keyof typeof DEMO_USERS;
@@ -19,13 +17,6 @@ type Role = keyof typeof DEMO_USERS;
 interface Screen {
   name: string;
   path: string;
-}
-
-interface Violation {
-  id: string;
-  impact: string | null;
-  help: string;
-  nodes: { target: string[]; failureSummary?: string }[];
 }
 
 /** A clip whose frames are extracted (the Trace stage shows), else null; some demo flights have no footage. */
@@ -64,25 +55,6 @@ function screensFor(role: Role, flight: { id: number; sessionId: number; clipId:
 async function ready(page: Page): Promise<void> {
   await page.waitForLoadState('networkidle');
   await page.locator('.p-skeleton').first().waitFor({ state: 'detached', timeout: 10000 }).catch(() => undefined);
-}
-
-/** axe-core's serious and critical WCAG 2.1 A/AA violations on the page as it is, one line each. */
-async function seriousViolations(page: Page): Promise<string[]> {
-  // Injected through the debugging protocol, so the page's script policy does not apply; nothing is downloaded.
-  if (!(await page.evaluate(() => 'axe' in window))) await page.evaluate(AXE_SOURCE);
-  const violations = await page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, opts: unknown) => Promise<{ violations: unknown[] }> } }).axe;
-    const result = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'] }, resultTypes: ['violations'] });
-    return result.violations;
-  });
-  return (violations as Violation[])
-    .filter((v) => v.impact === 'serious' || v.impact === 'critical')
-    .map((v) => {
-      const where = v.nodes.map((n) => n.target.join(' ')).slice(0, 4).join(', ');
-      // The first node's reason (for contrast: the colours and the ratio found) says what to change.
-      const why = (v.nodes[0]?.failureSummary ?? '').replace(/\s+/g, ' ').slice(0, 240);
-      return `${v.id} (${v.impact}): ${v.help} at ${where}. ${why}`;
-    });
 }
 
 /** How far the page scrolls sideways, in CSS pixels (0 when it fits), and the outermost elements that stick out. */

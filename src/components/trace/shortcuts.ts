@@ -17,6 +17,7 @@ export type TraceCommand =
   | { kind: 'zoomFit' }
   | { kind: 'zoomActual' }
   | { kind: 'jump' }
+  | { kind: 'keyMark' }
   | { kind: 'help' }
   | { kind: 'cancel' };
 
@@ -31,29 +32,68 @@ export interface KeyLike {
 
 /** Frames moved by Shift + arrow. */
 export const BIG_STEP = 10;
+/** Image pixels the keyboard cursor moves with Shift + arrow (1 without). */
+export const CURSOR_BIG_STEP = 10;
 
 export interface ShortcutHelp {
   keys: string;
   does: string;
 }
 
-/** What the help popover lists, in the order shown. */
-export const SHORTCUT_HELP: readonly ShortcutHelp[] = [
-  { keys: '← / →', does: 'Previous / next frame' },
-  { keys: 'Shift + ← / →', does: `Back / forward ${BIG_STEP} frames` },
-  { keys: 'Home / End', does: 'First / last frame' },
-  { keys: '[ / ]', does: 'Previous / next marked frame' },
-  { keys: 'G', does: 'Go to a frame number' },
-  { keys: 'Click', does: 'Mark the ball centre' },
-  { keys: 'Click + drag', does: 'Mark the centre and drag out the ball radius' },
-  { keys: 'Delete', does: 'Remove the mark on this frame' },
-  { keys: 'Ctrl + Z / Ctrl + Shift + Z', does: 'Undo / redo' },
-  { keys: 'Wheel', does: 'Zoom about the pointer' },
-  { keys: '+ / − / 0 / 1', does: 'Zoom in / out / whole frame / actual pixels' },
-  { keys: 'Space + drag, middle drag, Alt + drag', does: 'Pan' },
-  { keys: 'Esc', does: 'Leave calibration, close this help' },
-  { keys: '?', does: 'Show or hide this help' },
+/** What the help popover lists, in groups, in the order shown. */
+export const SHORTCUT_GROUPS: readonly { title: string; rows: readonly ShortcutHelp[] }[] = [
+  {
+    title: 'Frames',
+    rows: [
+      { keys: '← / →  or  , / .', does: 'Previous / next frame' },
+      { keys: 'Shift + ← / →', does: `Back / forward ${BIG_STEP} frames` },
+      { keys: 'Home / End', does: 'First / last frame' },
+      { keys: '[ / ]', does: 'Previous / next marked frame' },
+      { keys: 'G', does: 'Go to a frame number' },
+    ],
+  },
+  {
+    title: 'Marking by keys',
+    rows: [
+      { keys: 'M, or Enter on the frame', does: 'Start: a cursor on the frame' },
+      { keys: '← ↑ → ↓', does: `Move the cursor 1 px (Shift: ${CURSOR_BIG_STEP} px)` },
+      { keys: 'Enter', does: "Mark the ball at the cursor (moves this frame's mark)" },
+      { keys: ', / .', does: 'Previous / next frame, the cursor staying put' },
+      { keys: 'Esc', does: 'Stop (the arrows step frames again)' },
+    ],
+  },
+  {
+    title: 'Mouse',
+    rows: [
+      { keys: 'Click', does: 'Mark the ball centre' },
+      { keys: 'Click + drag', does: 'Mark the centre and drag out the ball radius' },
+      { keys: 'Wheel', does: 'Zoom about the pointer' },
+      { keys: 'Space + drag, middle drag, Alt + drag', does: 'Pan' },
+    ],
+  },
+  {
+    title: 'Touch',
+    rows: [
+      { keys: 'Tap', does: 'Mark the ball centre' },
+      { keys: 'Touch, hold, slide', does: 'Aim with the magnifier; lift to mark' },
+      { keys: 'Pinch / drag', does: 'Zoom / pan' },
+      { keys: 'Nudge arrows', does: "Move this frame's mark 1 px" },
+    ],
+  },
+  {
+    title: 'Track and view',
+    rows: [
+      { keys: 'Delete', does: 'Remove the mark on this frame' },
+      { keys: 'Ctrl + Z / Ctrl + Shift + Z', does: 'Undo / redo' },
+      { keys: '+ / − / 0 / 1', does: 'Zoom in / out / whole frame / actual pixels' },
+      { keys: 'Esc', does: 'Drop a line started, close this help' },
+      { keys: '?', does: 'Show or hide this help' },
+    ],
+  },
 ];
+
+/** Every row of the help, in order. */
+export const SHORTCUT_HELP: readonly ShortcutHelp[] = SHORTCUT_GROUPS.flatMap((g) => g.rows);
 
 /** Maps a key press to a command, or null when the key is not one of the screen's. */
 export function commandForKey(e: KeyLike): TraceCommand | null {
@@ -91,8 +131,14 @@ export function commandForKey(e: KeyLike): TraceCommand | null {
       return { kind: 'zoomFit' };
     case '1':
       return { kind: 'zoomActual' };
+    case ',':
+      return { kind: 'step', delta: -1 };
+    case '.':
+      return { kind: 'step', delta: 1 };
     case 'g':
       return { kind: 'jump' };
+    case 'm':
+      return { kind: 'keyMark' };
     case '?':
       return { kind: 'help' };
     case 'Escape':

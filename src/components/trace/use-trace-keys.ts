@@ -12,6 +12,7 @@ export interface TraceCanvasHandle {
   zoomActual(): void;
   ensureVisible(p: Vec2): void;
   cancelLine(): boolean;
+  toggleKeyCursor(): void;
 }
 
 export interface TraceKeyTargets {
@@ -85,6 +86,9 @@ export function useTraceKeys(trace: ReturnType<typeof useTraceStore>, targets: T
         break;
       case 'jump':
         frameBar.value?.focusJump();
+        break;
+      case 'keyMark':
+        if (!trace.readOnly && panel.value === 'track') canvas.value?.toggleKeyCursor();
         break;
       case 'help':
         help.value?.toggle();

@@ -163,3 +163,40 @@ export function clamp(v: number, lo: number, hi: number): number {
 export function roundPx(v: number): number {
   return Math.round(v * 10) / 10;
 }
+
+/**
+ * Two-finger zoom and pan: the image point that sat under the fingers' midpoint when the pinch began stays under
+ * their midpoint now, and the zoom changes by the ratio of the fingers' spread (now / at the start), within the
+ * limits. `a0`, `b0` are the fingers at the start (with `start` the viewport then), `a1`, `b1` where they are now.
+ */
+export function pinchViewport(start: Viewport, a0: Vec2, b0: Vec2, a1: Vec2, b1: Vec2, limits: { min: number; max: number }): Viewport {
+  const spread0 = distance(a0, b0);
+  const spread1 = distance(a1, b1);
+  const factor = spread0 > 0 && spread1 > 0 ? spread1 / spread0 : 1;
+  const scale = clamp(start.scale * factor, limits.min, limits.max);
+  const anchor = screenToImage(start, midpoint(a0, b0));
+  const mid = midpoint(a1, b1);
+  return { scale, offsetX: mid.x - anchor.x * scale, offsetY: mid.y - anchor.y * scale };
+}
+
+export function midpoint(a: Vec2, b: Vec2): Vec2 {
+  return { x: (a.x + b.x) / 2, y: (a.y + b.y) / 2 };
+}
+
+/** An image point moved by (dx, dy) image pixels and kept on the frame (the keyboard cursor, a nudged mark). */
+export function nudgeWithin(p: Vec2, dx: number, dy: number, image: Size): Vec2 {
+  return {
+    x: roundPx(clamp(p.x + dx, 0, image.width - 0.1)),
+    y: roundPx(clamp(p.y + dy, 0, image.height - 0.1)),
+  };
+}
+
+/**
+ * Where the touch magnifier sits: a circle of radius `r` above the finger (below it near the top edge), kept
+ * inside the canvas, so the fingertip never covers what it shows.
+ */
+export function loupePlace(finger: Vec2, canvas: Size, r: number, gap = 24): Vec2 {
+  const above = finger.y - gap - r;
+  const y = above - r >= 0 ? above : finger.y + gap + r;
+  return { x: clamp(finger.x, r, Math.max(r, canvas.width - r)), y: clamp(y, r, Math.max(r, canvas.height - r)) };
+}

@@ -32,6 +32,14 @@ describe('commandForKey', () => {
     expect(commandForKey({ key: 'G' })?.kind).toBe('jump');
   });
 
+  it('steps frames with comma and full stop too (the arrows move the cursor while marking by keys) and marks by keys with M', () => {
+    expect(commandForKey({ key: ',' })).toEqual({ kind: 'step', delta: -1 });
+    expect(commandForKey({ key: '.' })).toEqual({ kind: 'step', delta: 1 });
+    expect(commandForKey({ key: 'M' })).toEqual({ kind: 'keyMark' });
+    expect(SHORTCUT_HELP.some((h) => h.keys.startsWith('M'))).toBe(true);
+    expect(SHORTCUT_HELP.some((h) => h.keys.includes('Enter') && h.does.includes('cursor'))).toBe(true);
+  });
+
   it('lists in the help only keys that the mapping knows when the popover is built', () => {
     const singles = SHORTCUT_HELP.flatMap((h) => h.keys.split(/\s*\/\s*/)).filter((k) => /^[[\]?G]$/.test(k));
     for (const k of singles) expect(commandForKey({ key: k })).not.toBeNull();

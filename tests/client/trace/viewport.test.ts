@@ -4,7 +4,10 @@ import {
   fitViewport,
   imageToScreen,
   isDrag,
+  loupePlace,
+  nudgeWithin,
   panBy,
+  pinchViewport,
   pickNearest,
   scaleLimits,
   screenToImage,
@@ -144,5 +147,45 @@ describe('isDrag and pickNearest', () => {
     // At scale 8 the tolerance is 1 image pixel: the point 1 px away is still found, 3 px away is not.
     expect(pickNearest(points, { x: 101, y: 100 }, { scale: 8, offsetX: 0, offsetY: 0 }, 8)).toBe(0);
     expect(pickNearest(points, { x: 102, y: 103 }, { scale: 8, offsetX: 0, offsetY: 0 }, 8)).toBe(-1);
+  });
+});
+
+describe('pinchViewport', () => {
+  const start: Viewport = { scale: 0.5, offsetX: 8, offsetY: 8 };
+  const under = (v: Viewport, p: { x: number; y: number }) => screenToImage(v, p);
+
+  it('zooms by the ratio of the fingers\' spread and keeps the image point under their midpoint', () => {
+    const a0 = { x: 400, y: 300 }, b0 = { x: 500, y: 300 };
+    const next = pinchViewport(start, a0, b0, { x: 350, y: 300 }, { x: 550, y: 300 }, wide);
+    expect(next.scale).toBeCloseTo(1, 10);
+    const before = under(start, { x: 450, y: 300 });
+    const after = under(next, { x: 450, y: 300 });
+    expect(after.x).toBeCloseTo(before.x, 10);
+    expect(after.y).toBeCloseTo(before.y, 10);
+  });
+
+  it('pans with the midpoint when the fingers move together without spreading', () => {
+    const next = pinchViewport(start, { x: 100, y: 100 }, { x: 200, y: 100 }, { x: 130, y: 60 }, { x: 230, y: 60 }, wide);
+    expect(next).toEqual({ scale: 0.5, offsetX: 38, offsetY: -32 });
+  });
+
+  it('stays within the zoom limits and ignores fingers on one spot', () => {
+    const limits = { min: 0.25, max: 2 };
+    expect(pinchViewport(start, { x: 0, y: 0 }, { x: 10, y: 0 }, { x: 0, y: 0 }, { x: 1000, y: 0 }, limits).scale).toBe(2);
+    expect(pinchViewport(start, { x: 5, y: 5 }, { x: 5, y: 5 }, { x: 5, y: 5 }, { x: 50, y: 5 }, limits).scale).toBe(0.5);
+  });
+});
+
+describe('nudgeWithin and loupePlace', () => {
+  it('moves a point by whole image pixels, rounded to a tenth, and keeps it on the frame', () => {
+    expect(nudgeWithin({ x: 10.04, y: 20 }, 1, -1, image)).toEqual({ x: 11, y: 19 });
+    expect(nudgeWithin({ x: 3, y: 1075 }, -10, 10, image)).toEqual({ x: 0, y: 1079.9 });
+  });
+
+  it('puts the magnifier above the finger, below it near the top edge, and inside the canvas', () => {
+    const c = { width: 390, height: 220 };
+    expect(loupePlace({ x: 200, y: 180 }, c, 50, 20)).toEqual({ x: 200, y: 110 });
+    expect(loupePlace({ x: 200, y: 40 }, c, 50, 20)).toEqual({ x: 200, y: 110 });
+    expect(loupePlace({ x: 5, y: 200 }, c, 50, 20)).toEqual({ x: 50, y: 130 });
   });
 });
