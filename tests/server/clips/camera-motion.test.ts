@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { CameraMotion } from '../../../shared/schemas/camera-motion';
+import { claimNext } from '../../../server/jobs/queue';
 import type { FlightTruth } from '../../../server/video/synth';
 import { createClubFixture, type ClubFixture } from '../../support/app';
 import { CLIP_SPECS, testClip } from '../../support/clips';
@@ -144,6 +145,22 @@ describe('auto-follow with a moving camera', () => {
     expect(wrong.status).toBe(400);
     expect(wrong.body.error.message).toMatch(/camera must be "still"/);
     expect((await fx.coach.patch(clubPath(fx, `/clips/${clipId}`), { cameraStill: false })).body.data.cameraStill).toBe(false);
+  }, 240_000);
+
+  it('runs a follow again with its camera choice when the worker that had it died', async () => {
+    const flightId = await newFlight();
+    const at = truth.frames[START]!;
+    const res = await fx.coach.post(clubPath(fx, `/flights/${flightId}/follow`), { frame: START, xPx: at.x, yPx: at.y });
+    expect(res.status).toBe(202);
+    // A worker claims the job and dies without renewing its lease; the next worker takes it over.
+    const dead = await claimNext('dead-worker', { types: ['flight.follow'], leaseMs: 100 });
+    expect(dead?.job.id).toBe(res.body.data.id);
+    await new Promise((done) => setTimeout(done, 300));
+    await testWorker().drain();
+    const job = await getJob(fx.coach, fx.clubId, res.body.data.id);
+    expect(job).toMatchObject({ status: 'done', attempts: 2, result: { camera: 'moving' } });
+    const motion = (await fx.coach.get(clubPath(fx, `/flights/${flightId}/camera-motion`))).body.data as CameraMotion;
+    expect(motion).toMatchObject({ estimated: true, moved: true, referenceFrame: 0 });
   }, 240_000);
 
   it('refuses a calibration frame past the clip’s last frame', async () => {
