@@ -105,6 +105,16 @@ describe('Trace: a clip filmed with a panning camera', () => {
       );
       await page.getByTestId('report-warnings').scrollIntoViewIfNeeded();
       await screenshot(page, 'camera-02-report-warning');
+
+      // "Camera was still" on the clip is kept: the next follow skips the estimate.
+      await page.goto(`/clips/${clipId}/trace`);
+      await waitForFrame(page);
+      await page.getByTestId('camera-still').click();
+      const stillOf = async () => ((await (await page.request.get(`/api/v1/clubs/${clubId}/clips/${clipId}`)).json()) as { data: { cameraStill: boolean } }).data.cameraStill;
+      await expect.poll(stillOf).toBe(true);
+      await page.reload();
+      await waitForFrame(page);
+      await expect(page.getByTestId('camera-still').locator('input').isChecked()).resolves.toBe(true);
       expect(errors).toEqual([]);
     });
   }, 300000);
