@@ -53,6 +53,8 @@ export class Clip extends Model<InferAttributes<Clip>, InferCreationAttributes<C
   declare timestampRate: CreationOptional<number | null>;
   /** What the upload found odd about the timestamps (jumps, repeats), in words for the coach. */
   declare timestampWarning: CreationOptional<string | null>;
+  /** The coach says the camera did not move: auto-follow skips the camera-motion estimate. */
+  declare cameraStill: CreationOptional<boolean>;
   declare status: CreationOptional<ClipStatus>;
   declare failureReason: string | null;
   declare createdAt: CreationOptional<Date>;
@@ -87,6 +89,7 @@ export function initClip(sequelize: Sequelize): typeof Clip {
       frameTimes: jsonText<number[]>('frameTimes', { allowNull: true, long: true }),
       timestampRate: { type: DataTypes.DOUBLE, allowNull: true },
       timestampWarning: { type: DataTypes.TEXT, allowNull: true },
+      cameraStill: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       status: { type: DataTypes.ENUM('processing', 'ready', 'failed'), allowNull: false, defaultValue: 'processing' },
       failureReason: { type: DataTypes.TEXT, allowNull: true },
       createdAt: DataTypes.DATE,

@@ -16,6 +16,7 @@ import { CoachNote, initCoachNote } from './coach-note';
 import { Fit, initFit } from './fit';
 import { Flight, initFlight } from './flight';
 import { FlightAction, initFlightAction } from './flight-action';
+import { FlightCameraMotion, initFlightCameraMotion } from './flight-camera-motion';
 import { Invitation, initInvitation } from './invitation';
 import { Job, initJob } from './job';
 import { Membership, initMembership } from './membership';
@@ -37,6 +38,7 @@ initFlightAction(sequelize);
 initClubBall(sequelize);
 initFlight(sequelize);
 initTrackPoint(sequelize);
+initFlightCameraMotion(sequelize);
 initFit(sequelize);
 initJob(sequelize);
 initInvitation(sequelize);
@@ -73,6 +75,7 @@ Flight.belongsTo(AthleteProfile, { foreignKey: 'athleteProfileId', as: 'athlete'
 Flight.hasMany(TrackPoint, { foreignKey: 'flightId', as: 'points' });
 TrackPoint.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 Flight.hasMany(Fit, { foreignKey: 'flightId', as: 'fits' });
+Flight.hasOne(FlightCameraMotion, { foreignKey: 'flightId', as: 'cameraMotion' });
 Fit.belongsTo(Flight, { foreignKey: 'flightId', as: 'flight' });
 
 /**
@@ -144,6 +147,7 @@ export {
   Fit,
   Flight,
   FlightAction,
+  FlightCameraMotion,
   Invitation,
   Job,
   Membership,

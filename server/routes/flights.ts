@@ -13,6 +13,7 @@ import { exportUnits, sendCsv } from '../http/csv';
 import { parseId } from '../http/errors';
 import { ANY_ROLE, clubAccess, clubOf } from '../middleware/authorize';
 import { validate, validationError } from '../middleware/validate';
+import { getCameraMotion } from '../services/camera-motion';
 import { listFits, requestFit } from '../services/fits';
 import {
   createAction,
@@ -85,6 +86,10 @@ flightsRouter.get('/clubs/:clubId/flights/:flightId/points', clubAccess(...ANY_R
 
 flightsRouter.put('/clubs/:clubId/flights/:flightId/points', clubAccess('admin', 'coach'), validate(trackPointsBodySchema), async (req, res) => {
   res.json({ data: await replacePoints(clubOf(req), parseId(req.params.flightId, 'flight'), req.body.points) });
+});
+
+flightsRouter.get('/clubs/:clubId/flights/:flightId/camera-motion', clubAccess('admin', 'coach'), async (req, res) => {
+  res.json({ data: await getCameraMotion(clubOf(req), parseId(req.params.flightId, 'flight')) });
 });
 
 flightsRouter.post('/clubs/:clubId/flights/:flightId/follow', clubAccess('admin', 'coach'), validate(followBodySchema), async (req, res) => {

@@ -90,6 +90,9 @@ function checkNear(clip: Clip, input: CalibrationInput): void {
     check('level.b', input.level.b);
   }
   check('origin', input.origin);
+  if (input.frame !== null && input.frame !== undefined && clip.frameCount !== null && input.frame >= clip.frameCount) {
+    fields.frame = `Frame ${input.frame} is past the clip's last frame ${clip.frameCount - 1}: give the frame the calibration was marked on.`;
+  }
   const names = Object.keys(fields);
   if (names.length > 0) throw new ApiError('VALIDATION_FAILED', `Check ${names.join(', ')}. ${fields[names[0]]}`, fields);
 }

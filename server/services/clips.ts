@@ -90,6 +90,7 @@ export async function toClipDtos(club: ClubContext, clips: Clip[]): Promise<Clip
       durationS: clip.frameCount ? clip.frameCount / clip.captureFps : null,
       variableFrameRate: Boolean(clip.frameTimes),
       timestampWarning: clip.timestampWarning ?? null,
+      cameraStill: clip.cameraStill,
       status: clip.status,
       failureReason: clip.failureReason ?? null,
       job: job ? (toJobSummary(job) as JobSummary) : null,
@@ -349,12 +350,17 @@ async function keep(club: ClubContext, sessionId: number, input: KeepInput) {
   }
 }
 
-/** Corrects the label or the capture rate; a new rate re-times every flight, so fitted flights are refitted. */
+/**
+ * Corrects the label or the capture rate, or marks the camera as still (auto-follow then skips the motion
+ * estimate; flights already followed keep theirs until followed again); a new rate re-times every flight, so
+ * fitted flights are refitted.
+ */
 export async function patchClip(club: ClubContext, clipId: number, patch: ClipPatch): Promise<ClipDto> {
   const clip = await findVisibleClip(club, clipId);
   await withTransaction(async (transaction) => {
     const rateChanged = patch.captureFps !== undefined && patch.captureFps !== clip.captureFps;
     if (patch.label !== undefined) clip.label = patch.label;
+    if (patch.cameraStill !== undefined) clip.cameraStill = patch.cameraStill;
     if (patch.captureFps !== undefined) {
       clip.captureFps = patch.captureFps;
       if (clip.playbackFps !== null && Math.abs(patch.captureFps - clip.playbackFps) > 1e-6) clip.slowMotion = patch.captureFps > clip.playbackFps;

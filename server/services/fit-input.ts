@@ -1,15 +1,18 @@
 /**
  * The input of a flight's fit, built in one place for the `flight.fit` job, the demo seeder and the
- * tests: the clip's current calibration turns the traced pixels into metres (t = frame / capture rate),
+ * tests: the clip's current calibration turns the traced pixels (carried into the calibration frame's pixels
+ * through the camera motion auto-follow found) into metres (t = frame / capture rate),
  * the session's conditions give the air and the wind along the flight, and the flight names the ball.
  */
 import { airFromConditions, type Air, type BallProps, type Conditions as AirConditions, type ReleaseSpec } from '../../shared/physics';
 import { pixelToMetres } from '../../shared/calibration/geometry';
+import { cameraMoved } from '../../shared/schemas/camera-motion';
 import type { Conditions } from '../../shared/schemas/session';
 import { JobFailure } from '../jobs/types';
 import { Clip, Flight, Session, TrackPoint, type Calibration } from '../models';
 import { resolveFlightBall } from './balls';
 import { currentCalibration, frameOf } from './calibration';
+import { cameraMotionOf, referenceMapper } from './camera-motion';
 import { frameTimer } from './frame-times';
 import { conditionsOf } from './sessions';
 
@@ -51,7 +54,9 @@ export interface FitInput {
   calibration: Calibration;
   /** The traced points in frame order, as stored (their ids tell whether they changed meanwhile). */
   points: TrackPoint[];
-  /** The points in seconds and metres (t from the capture rate, x along the flight, y up). */
+  /** The camera moved while filming (auto-follow found its motion above the thresholds of shared/schemas/camera-motion.ts). */
+  cameraMoved: boolean;
+  /** The points in seconds and metres (t from the capture rate, x along the flight, y up), from the reference frame's pixels. */
   track: { t: number[]; x: number[]; y: number[] };
   /**
    * Ball, air and wind for `fitFlight` (no air: the engine assumes standard air), the release (a marked frame
@@ -80,8 +85,11 @@ export async function loadFitInput(flightId: number): Promise<FitInput> {
   const frame = frameOf(calibration);
   const track: FitInput['track'] = { t: [], x: [], y: [] };
   const timeOf = frameTimer(clip);
+  const cameraMotion = await cameraMotionOf(flight.id);
+  const toRef = referenceMapper(cameraMotion, calibration);
   for (const p of points) {
-    const m = pixelToMetres(frame, { xPx: p.xPx, yPx: p.yPx });
+    const ref = toRef(p.frame, p.xPx, p.yPx);
+    const m = pixelToMetres(frame, { xPx: ref.x, yPx: ref.y });
     track.t.push(timeOf(p.frame));
     track.x.push(m.xM);
     track.y.push(m.yM);
@@ -94,6 +102,7 @@ export async function loadFitInput(flightId: number): Promise<FitInput> {
     calibration,
     points,
     track,
+    cameraMoved: cameraMotion !== null && cameraMoved(cameraMotion.maxPanPx, cameraMotion.maxRollDeg),
     options: {
       ball,
       ...(air ? { air: airFromConditions(air) } : {}),

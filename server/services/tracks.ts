@@ -19,6 +19,7 @@ import type { ClubContext } from '../http/types';
 import { enqueue } from '../jobs/queue';
 import { Calibration, Clip, Flight, TrackPoint } from '../models';
 import { currentCalibration, frameOf } from './calibration';
+import { cameraMotionOf, referenceMapper, writeCameraMotion, type storedMotion } from './camera-motion';
 import { frameAtTime, frameTimer } from './frame-times';
 import { toJobDto } from './jobs';
 import { findVisibleFlightWithClip } from './visibility';
@@ -28,8 +29,10 @@ export async function pointsOf(flight: Flight, clip: Clip, cal: Calibration | nu
   const points = await TrackPoint.findAll({ where: { flightId: flight.id }, order: [['frame', 'ASC']], transaction });
   const frame = cal ? frameOf(cal) : null;
   const timeOf = frameTimer(clip);
+  const toRef = referenceMapper(await cameraMotionOf(flight.id, transaction), cal);
   return points.map((p) => {
-    const m = frame ? pixelToMetres(frame, { xPx: p.xPx, yPx: p.yPx }) : null;
+    const ref = toRef(p.frame, p.xPx, p.yPx);
+    const m = frame ? pixelToMetres(frame, { xPx: ref.x, yPx: ref.y }) : null;
     return {
       frame: p.frame,
       xPx: p.xPx,
@@ -40,6 +43,8 @@ export async function pointsOf(flight: Flight, clip: Clip, cal: Calibration | nu
       tS: timeOf(p.frame),
       xM: m ? m.xM : null,
       yM: m ? m.yM : null,
+      xRefPx: ref.x,
+      yRefPx: ref.y,
     };
   });
 }
@@ -105,13 +110,22 @@ export async function replacePoints(club: ClubContext, flightId: number, points:
   }, { readCommitted: true });
 }
 
-/** Stores auto-follow points from `fromFrame` on (earlier points stay), inside the flight's range. Used by the flight.follow job. */
-export async function storeFollowedPoints(flightId: number, fromFrame: number, points: TrackPointInput[]): Promise<number> {
+/**
+ * Stores auto-follow points from `fromFrame` on (earlier points stay), inside the flight's range, and the camera
+ * motion the follow found (null: it took the camera as still), in one transaction. Used by the flight.follow job.
+ */
+export async function storeFollowedPoints(
+  flightId: number,
+  fromFrame: number,
+  points: TrackPointInput[],
+  camera: ReturnType<typeof storedMotion> | null = null,
+): Promise<number> {
   return withTransaction(async (transaction) => {
     const flight = await Flight.findByPk(flightId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!flight) return 0;
     const kept = points.filter((p) => p.frame >= fromFrame && p.frame >= flight.frameStart && p.frame <= flight.frameEnd);
     await writePoints(flight, kept, transaction, fromFrame);
+    await writeCameraMotion(flight.id, camera, transaction);
     return kept.length;
   }, { readCommitted: true });
 }
@@ -207,7 +221,14 @@ export async function startFollow(club: ClubContext, flightId: number, body: Fol
   const job = await enqueue({
     clubId: club.id,
     type: 'flight.follow',
-    payload: { flightId: flight.id, frame: body.frame, xPx: body.xPx, yPx: body.yPx, radiusPx: body.radiusPx ?? null },
+    payload: {
+      flightId: flight.id,
+      frame: body.frame,
+      xPx: body.xPx,
+      yPx: body.yPx,
+      radiusPx: body.radiusPx ?? null,
+      camera: body.camera ?? (clip.cameraStill ? 'still' : 'moving'),
+    },
     clipId: clip.id,
     flightId: flight.id,
   });

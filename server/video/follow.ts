@@ -519,6 +519,13 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const sy = src.height / src.sourceHeight;
     const s = Math.sqrt(sx * sy);
     const maxLost = options.maxLostFrames ?? Math.max(FOLLOW_DEFAULTS.minLostFrames, Math.round(FOLLOW_DEFAULTS.maxLostS * fps));
+    const referenceFrame = options.referenceFrame ?? start.frame;
+    if (!Number.isInteger(referenceFrame) || referenceFrame < 0 || referenceFrame >= src.frameCount) {
+      throw new VideoError('VIDEO_BAD_REQUEST', `Reference frame ${referenceFrame} is outside the clip: its frames are numbered 0 to ${src.frameCount - 1}.`, {
+        referenceFrame,
+        frameCount: src.frameCount,
+      });
+    }
     const camera = options.camera === 'moving' ? new CameraMaps(new CameraTracker(src.width, src.height), start.frame) : null;
     const tracker = new Tracker({
       width: src.width,
@@ -565,13 +572,22 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
       }
     };
     // Frames past `lastFrame` are still read as look-ahead for the background.
-    const readLast = lastFrame === null ? null : Math.min(src.frameCount - 1, lastFrame + ahead);
-    for await (const f of src.read(first, readLast, options.signal, pool)) {
-      buffer.set(f.index, f.data);
+    // With a reference frame outside the frames followed, the camera alone is tracked through to it:
+    // those frames go to the camera tracker only (its key frames are copies) and back to the pool.
+    const refFrame = camera ? referenceFrame : start.frame;
+    const followLast = lastFrame === null ? null : Math.min(src.frameCount - 1, lastFrame + ahead);
+    const readLast = followLast === null ? null : Math.max(followLast, refFrame);
+    for await (const f of src.read(Math.min(first, refFrame), readLast, options.signal, pool)) {
       camera?.push(f.index, f.data);
+      if (f.index < first || stopped) {
+        pool.push(f.data);
+        if (stopped && f.index >= refFrame) break;
+        continue;
+      }
+      buffer.set(f.index, f.data);
       newest = f.index;
       advance(Math.min(f.index - ahead, lastFrame ?? Infinity), Math.min(f.index, lastFrame ?? Infinity));
-      if (stopped) break;
+      if (stopped && (!camera || f.index >= refFrame)) break;
     }
     if (!stopped) {
       if (newest < start.frame) {
@@ -585,15 +601,18 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     const times = options.frameTimesS ?? src.frameTimesS;
     const timeScale = options.captureFps ? src.timestampRate / options.captureFps : 1;
     const timeOf = (frame: number): number => (times && times[frame] !== undefined ? (times[frame]! - times[0]!) * timeScale : frame / fps);
+    // The track is followed in the start frame's pixels; the result is given in the reference frame's.
+    const startToRef = camera && refFrame !== start.frame ? invertRigid(camera.toRef(refFrame)) : IDENTITY;
     const points: FollowPoint[] = tracker.points.map((p) => {
       const own = tracker.fromRef(p.frame, p);
+      const ref = applyRigid(startToRef, p.x, p.y);
       return {
       frame: p.frame,
       t: timeOf(p.frame),
       x: own.x / sx,
       y: own.y / sy,
-      xRef: p.x / sx,
-      yRef: p.y / sy,
+      xRef: ref.x / sx,
+      yRef: ref.y / sy,
       confidence: Math.round(tracker.confidenceOf(p.frame) * 1000) / 1000,
       };
     });
@@ -605,7 +624,13 @@ export async function followBall(source: FollowSource, start: FollowStart, optio
     return {
       points,
       outOfView,
-      camera: camera ? camera.all().map((m) => ({ frame: m.frame, rotRad: m.rotRad, tx: m.tx / sx, ty: m.ty / sy })) : null,
+      camera: camera
+        ? camera.all().map((k) => {
+            const m = composeRigid(startToRef, k);
+            return { frame: k.frame, rotRad: m.rotRad, tx: m.tx / sx, ty: m.ty / sy };
+          })
+        : null,
+      referenceFrame: refFrame,
       stoppedBecause: stopped ?? 'end-of-clip',
       radiusPx: tracker.radiusPx / s,
       captureFps: fps,

@@ -166,6 +166,11 @@ export interface FollowOptions {
    * background (camera-motion.ts) and the track is followed in the start frame's coordinates.
    */
   camera?: 'still' | 'moving';
+  /**
+   * With `camera: 'moving'`: the frame whose pixels `xRef, yRef` and the camera maps are given in (the frame the
+   * calibration was marked on); the camera is tracked through it even outside the frames followed. Default: the start frame.
+   */
+  referenceFrame?: number;
   /** Memory for buffered frames, bytes. Default 96 MiB (about 48 frames of 1080p gray). */
   maxBufferBytes?: number;
   /**
@@ -187,7 +192,7 @@ export interface FollowPoint {
   y: number;
   /** 0–1: contrast against the background, agreement with the predicted path and with the ball's size. */
   confidence: number;
-  /** The same point in the reference frame's pixels (the start frame; equal to x, y with a still camera). */
+  /** The same point in the reference frame's pixels (`referenceFrame`, else the start frame; equal to x, y with a still camera). */
   xRef: number;
   yRef: number;
 }
@@ -216,6 +221,8 @@ export interface FollowResult {
    * (tx, ty), p from the top-left corner); null with a still camera.
    */
   camera: Array<{ frame: number; rotRad: number; tx: number; ty: number }> | null;
+  /** The frame `xRef, yRef` and `camera` refer to (the start frame with a still camera). */
+  referenceFrame: number;
   /** Measured (or given) ball radius in pixels. */
   radiusPx: number;
   captureFps: number;

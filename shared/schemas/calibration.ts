@@ -40,6 +40,8 @@ export const calibrationInputSchema = z
       .max(50, { error: 'The marked line must be at most 50 m above the ground: give its height in metres.' })
       .nullable()
       .optional(),
+    /** The frame the calibration was marked on: with a moving camera the track is expressed in its pixels. */
+    frame: z.number({ error: 'The calibration frame must be a frame number.' }).int({ error: 'The calibration frame must be a whole number.' }).min(0, { error: 'The calibration frame must be 0 or more.' }).nullable().optional(),
     direction: z.enum(CALIBRATION_DIRECTIONS, { error: 'Direction must be "right" or "left": the way the ball flies across the image.' }),
     ball: z
       .object({

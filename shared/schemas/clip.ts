@@ -42,6 +42,7 @@ export const clipPatchSchema = z
   .object({
     label: z.string().trim().min(1, { error: 'Label cannot be empty.' }).max(120, { error: 'Label must be at most 120 characters.' }).optional(),
     captureFps: captureFpsSchema.optional(),
+    cameraStill: z.boolean({ error: 'cameraStill must be true (the camera did not move: auto-follow skips the motion estimate) or false.' }).optional(),
   })
   .strict();
 export type ClipPatch = z.infer<typeof clipPatchSchema>;
@@ -121,6 +122,8 @@ export interface Clip {
   variableFrameRate: boolean;
   /** What the upload found odd about the timestamps (they jump or repeat), in words; null when nothing. */
   timestampWarning: string | null;
+  /** The coach marked the clip as filmed from a still camera: auto-follow skips the camera-motion estimate. */
+  cameraStill: boolean;
   status: ClipStatus;
   failureReason: string | null;
   job: JobSummary | null;

@@ -3,6 +3,7 @@
  * Pixels are measured from the top-left corner of the frame as served (after rotation), y down; frames are 0-based.
  */
 import { z } from 'zod';
+import { cameraModeSchema } from './camera-motion';
 
 export const POINT_SOURCES = ['manual', 'auto'] as const;
 export type PointSource = (typeof POINT_SOURCES)[number];
@@ -43,6 +44,8 @@ export const followBodySchema = z.object({
   xPx: finite('x (px)'),
   yPx: finite('y (px)'),
   radiusPx: z.number().positive({ error: 'Radius must be more than 0 pixels.' }).nullable().optional(),
+  /** Default: "still" when the clip is marked as filmed from a still camera, else "moving" (estimated). */
+  camera: cameraModeSchema.optional(),
 });
 export type FollowBody = z.infer<typeof followBodySchema>;
 
@@ -62,4 +65,10 @@ export interface TrackPoint {
   /** Metres along the flight and up from the ground; null until the clip is calibrated. */
   xM: number | null;
   yM: number | null;
+  /**
+   * The point in the reference frame's pixels (the frame the calibration was marked on), through the camera
+   * motion auto-follow found; equal to xPx, yPx when the camera was still. Metres are computed from these.
+   */
+  xRefPx: number;
+  yRefPx: number;
 }

@@ -26,7 +26,10 @@ export async function fetchClip(clubId: number, clipId: number, options?: Reques
   return (await http.get<DataResponse<Clip>>(clipPath(clubId, clipId), options)).data;
 }
 
-/** Renames a clip or corrects its capture rate (every time derived from it follows; fitted flights are refitted). */
+/**
+ * Renames a clip, corrects its capture rate (every time derived from it follows; fitted flights are refitted), or
+ * marks it as filmed from a still camera (auto-follow then skips the camera-motion estimate).
+ */
 export async function updateClip(clubId: number, clipId: number, body: ClipPatch, options?: RequestOptions): Promise<Clip> {
   return (await http.patch<DataResponse<Clip>>(clipPath(clubId, clipId), body, options)).data;
 }

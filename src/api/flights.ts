@@ -1,11 +1,12 @@
 import type { DataResponse, ListResponse } from '@shared/types/api';
+import type { CameraMotion } from '@shared/schemas/camera-motion';
 import type { Job } from '@shared/schemas/clip';
 import type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightSort, FlightStatus } from '@shared/schemas/flight';
 import type { FollowBody, TrackPoint, TrackPointInput } from '@shared/schemas/track';
 import { apiUrl, http, type RequestOptions } from './http';
 import { fetchAllPages, type PageResponse } from './paging';
 
-export type { Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightStatus, TrackPoint, TrackPointInput };
+export type { CameraMotion, Fit, Flight, FlightAction, FlightDetail, FlightInput, FlightPatch, FlightStatus, TrackPoint, TrackPointInput };
 
 const clubBase = (clubId: number) => `/clubs/${clubId}`;
 const flightPath = (clubId: number, flightId: number) => `${clubBase(clubId)}/flights/${flightId}`;
@@ -86,6 +87,11 @@ export async function savePoints(clubId: number, flightId: number, points: Track
 /** Starts auto-follow from a marked point; answers the `flight.follow` job to watch. */
 export async function startFollow(clubId: number, flightId: number, body: FollowBody, options?: RequestOptions): Promise<Job> {
   return (await http.post<DataResponse<Job>>(`${flightPath(clubId, flightId)}/follow`, body, options)).data;
+}
+
+/** The camera motion the latest auto-follow found for the flight (staff only). */
+export async function fetchCameraMotion(clubId: number, flightId: number, options?: RequestOptions): Promise<CameraMotion> {
+  return (await http.get<DataResponse<CameraMotion>>(`${flightPath(clubId, flightId)}/camera-motion`, options)).data;
 }
 
 /** Replaces the points by those of a CSV (pixel or metre columns); a bad cell answers 400 CSV_INVALID naming line and column. */

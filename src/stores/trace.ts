@@ -55,7 +55,7 @@ export const useTraceStore = defineStore('trace', () => {
   const track = useTrackEditing();
   const { points } = track;
   const currentPoint = computed(() => pointAt(points.value, frame.value));
-  const calibration = useCalibrationDraft(clip, clubId);
+  const calibration = useCalibrationDraft(clip, clubId, frame);
   const jobs = useTraceJobs({
     clubId,
     flightId,

@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { collectPageErrors, DEMO_USERS, launchBrowser, newContext, screenshot, signIn } from './support/browser';
 import { renderClip, type Truth } from './support/clips';
+import { goToFrame, imageToPage, waitForFrame } from './support/trace-page';
 
 /**
  * The way from a clip to a traced, calibrated flight in the browser: a coach creates a session, uploads a
@@ -21,33 +22,6 @@ const LAUNCH_X = WIDTH * 0.08;
 const GROUND_Y = HEIGHT * 0.85;
 /** Length of the scale line drawn along the ground, m. */
 const SCALE_M = 10;
-
-interface Point {
-  x: number;
-  y: number;
-}
-
-/** Screen position of an image pixel, from the viewer's current zoom and pan (its data-view attribute). */
-async function imageToPage(page: Page, p: Point): Promise<Point> {
-  const viewer = page.getByTestId('trace-viewer');
-  const view = (await viewer.getAttribute('data-view')) ?? '1,0,0';
-  const [scale, ox, oy] = view.split(',').map(Number);
-  const box = await viewer.boundingBox();
-  if (!box) throw new Error('The frame viewer is not on screen.');
-  return { x: box.x + p.x * scale + ox, y: box.y + p.y * scale + oy };
-}
-
-async function waitForFrame(page: Page): Promise<void> {
-  await page.locator('[data-testid="trace-viewer"][data-ready="true"]').waitFor({ timeout: 15000 });
-}
-
-async function goToFrame(page: Page, frame: number): Promise<void> {
-  const box = page.getByTestId('frame-jump').locator('input');
-  await box.fill(String(frame));
-  await box.press('Enter');
-  await expect.poll(async () => (await page.getByTestId('frame-now').textContent())?.trim().split(' ')[0]).toBe(String(frame));
-  await waitForFrame(page);
-}
 
 async function pickOption(page: Page, testId: string, name: string | RegExp): Promise<void> {
   await page.getByTestId(testId).click();

@@ -8,6 +8,7 @@
 import { ENGINE_VERSION, fitFlight, FLIGHT_MODELS, type FitResult, type ModelChoice } from '../../../shared/physics';
 import { BALL_CHECK_TOLERANCE } from '../../../shared/calibration/geometry';
 import type { BallCheck } from '../../../shared/schemas/calibration';
+import { MOVING_CAMERA_WARNING } from '../../../shared/schemas/camera-motion';
 import type { FitWarning } from '../../../shared/schemas/flight';
 import { withTransaction } from '../../db';
 import { Fit, Flight, TrackPoint } from '../../models';
@@ -39,7 +40,7 @@ export const flightFitHandler: JobHandler = {
   async run({ job, progress }) {
     const flightId = job.payload.flightId;
     if (typeof flightId !== 'number') throw new JobFailure('The flight was deleted before it could be fitted.', 'FLIGHT_GONE');
-    const { flight, clip, calibration: cal, points, track, options } = await loadFitInput(flightId);
+    const { flight, clip, calibration: cal, points, track, options, cameraMoved } = await loadFitInput(flightId);
     // Every save of points writes new rows, so the largest id tells whether the points changed meanwhile.
     const pointsSeen = pointsSignature(points);
     const requested = typeof job.payload.model === 'string' ? job.payload.model : 'auto';
@@ -53,6 +54,7 @@ export const flightFitHandler: JobHandler = {
     const warnings: FitWarning[] = result.warnings.map((w) => ({ code: w.code, message: w.message }));
     const sizeWarning = ballCheckWarning(cal.ballCheck);
     if (sizeWarning) warnings.unshift(sizeWarning);
+    if (cameraMoved) warnings.push({ ...MOVING_CAMERA_WARNING });
     const attention = warnings.filter((w) => ATTENTION_WARNINGS.has(w.code));
     const status = attention.length > 0 ? 'needs_attention' : 'fitted';
     const params = {

@@ -1,9 +1,13 @@
 /**
  * `flight.follow`: auto-follow the ball from a clicked point through the flight's frames, then store the
- * followed points (replacing the flight's points from the start frame on). Nothing is written until the
- * follower has finished, so a failed or stopped run leaves the flight as it was.
+ * followed points (replacing the flight's points from the start frame on) with the camera motion found, in
+ * the pixels of the frame the calibration was marked on. Nothing is written until the follower has finished,
+ * so a failed or stopped run leaves the flight as it was (and a restarted job runs again from the start).
  */
 import { Clip, Flight } from '../../models';
+import type { CameraMode } from '../../../shared/schemas/camera-motion';
+import { currentCalibration } from '../../services/calibration';
+import { storedMotion } from '../../services/camera-motion';
 import { storeFollowedPoints } from '../../services/tracks';
 import { storage } from '../../storage';
 import { followBall, probeClip, probeFrameSet, type MediaProbe } from '../../video';
@@ -13,7 +17,14 @@ export const flightFollowHandler: JobHandler = {
   type: 'flight.follow',
 
   async run({ job, signal, progress }) {
-    const { flightId, frame, xPx, yPx, radiusPx } = job.payload as { flightId: number; frame: number; xPx: number; yPx: number; radiusPx: number | null };
+    const { flightId, frame, xPx, yPx, radiusPx, camera } = job.payload as {
+      flightId: number;
+      frame: number;
+      xPx: number;
+      yPx: number;
+      radiusPx: number | null;
+      camera?: CameraMode;
+    };
     const flight = await Flight.findByPk(flightId);
     const clip = flight ? await Clip.findByPk(flight.clipId) : null;
     if (!flight || !clip) throw new JobFailure('The flight was deleted before the ball could be followed.', 'FLIGHT_GONE');
@@ -29,12 +40,19 @@ export const flightFollowHandler: JobHandler = {
       const paths = held.map((h) => h.path);
       const probe: MediaProbe = clip.kind === 'video' ? await probeClip(paths[0]!) : await probeFrameSet(paths, clip.captureFps);
       const span = Math.max(1, flight.frameEnd - frame);
+      // A job queued before the camera option existed followed a still camera.
+      const moving = camera === 'moving';
+      const cal = moving ? await currentCalibration(clip.id) : null;
+      const calFrame = cal?.input.frame;
+      const referenceFrame = calFrame !== null && calFrame !== undefined && calFrame < probe.frameCount ? calFrame : frame;
       const result = await followBall(
         probe,
         { frame, x: xPx, y: yPx, ...(radiusPx ? { radius: radiusPx } : {}) },
         {
           captureFps: clip.captureFps,
           endFrame: flight.frameEnd,
+          camera: moving ? 'moving' : 'still',
+          ...(moving ? { referenceFrame } : {}),
           signal,
           onProgress: (info) => progress((95 * (info.frame - frame)) / span),
         },
@@ -44,9 +62,16 @@ export const flightFollowHandler: JobHandler = {
         flight.id,
         frame,
         result.points.map((p) => ({ frame: p.frame, xPx: p.x, yPx: p.y, radiusPx: result.radiusPx, confidence: p.confidence, source: 'auto' as const })),
+        result.camera ? storedMotion({ referenceFrame: result.referenceFrame, maps: result.camera }, clip) : null,
       );
       const last = result.points.at(-1);
-      return { pointCount: stored, stoppedBecause: result.stoppedBecause, lastFrame: last ? last.frame : frame, radiusPx: result.radiusPx };
+      return {
+        pointCount: stored,
+        stoppedBecause: result.stoppedBecause,
+        lastFrame: last ? last.frame : frame,
+        radiusPx: result.radiusPx,
+        camera: moving ? 'moving' : 'still',
+      };
     } finally {
       for (const h of held) await h.release();
     }

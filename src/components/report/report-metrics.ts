@@ -190,6 +190,7 @@ const WARNING_TITLES: Record<string, { title: string; tone: WarningTone }> = {
   LARGE_LIFT: { title: 'Unusually large lift', tone: 'caution' },
   AIR_ASSUMED: { title: 'Standard air assumed', tone: 'info' },
   LINEAR_DRAG_UNUSUAL: { title: 'Linear drag is unusual for this ball', tone: 'caution' },
+  MOVING_CAMERA: { title: 'Moving camera', tone: 'info' },
 };
 
 /** A heading and tone for a fit warning; the engine's own message carries the plain-language explanation. */

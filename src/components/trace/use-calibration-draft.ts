@@ -40,7 +40,7 @@ function draftFromClip(clip: Clip | null): CalibrationDraft {
  * The clip's calibration on the Trace screen: the saved one's pixel → metre frame, the draft being drawn (scale
  * line, level line, origin, direction), its preview, and saving or removing it.
  */
-export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<number | null>) {
+export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<number | null>, frameInView: Ref<number>) {
   const draft = ref<CalibrationDraft>({ ...EMPTY_DRAFT });
   const calibrationSaving = ref(false);
 
@@ -109,7 +109,8 @@ export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<n
     if (!c || !input || clubId.value === null) return { refits: 0 };
     calibrationSaving.value = true;
     try {
-      const answer = await saveCalibration(clubId.value, c.id, { ...input, ball }, { notify: false });
+      // The frame in view is the one marked on: with a moving camera the track is carried into its pixels.
+      const answer = await saveCalibration(clubId.value, c.id, { ...input, ball, frame: frameInView.value }, { notify: false });
       const { refitJobIds, ...calibration } = answer;
       clip.value = { ...c, calibration };
       resetDraft();

@@ -114,8 +114,8 @@ describe('flights API', () => {
     });
     expect(put.status).toBe(200);
     expect(put.body.data).toEqual([
-      { frame: 5, xPx: 28, yPx: 202, radiusPx: null, source: 'auto', confidence: 0.9, tS: 5 / 30, xM: null, yM: null },
-      { frame: 6, xPx: 30.5, yPx: 200.25, radiusPx: 6, source: 'manual', confidence: null, tS: 6 / 30, xM: null, yM: null },
+      { frame: 5, xPx: 28, yPx: 202, radiusPx: null, source: 'auto', confidence: 0.9, tS: 5 / 30, xM: null, yM: null, xRefPx: 28, yRefPx: 202 },
+      { frame: 6, xPx: 30.5, yPx: 200.25, radiusPx: 6, source: 'manual', confidence: null, tS: 6 / 30, xM: null, yM: null, xRefPx: 30.5, yRefPx: 200.25 },
     ]);
     expect((await fx.coach.get(clubPath(fx, `/flights/${id}`))).body.data).toMatchObject({ status: 'traced', pointCount: 2 });
     const moved = await fx.coach.put(clubPath(fx, `/flights/${id}/points`), { points: [{ frame: 6, xPx: 31, yPx: 199 }] });

@@ -107,3 +107,37 @@ describe('followBall with a moving camera', () => {
     expect(lastMap.tx).toBeGreaterThan(300);
   });
 });
+
+describe('followBall with a reference frame of its own', () => {
+  it('gives the track and the maps in the pixels of a reference frame after the frames followed', async () => {
+    const clip = await testClip('panning', CLIP_SPECS.panning as FlightClipSpec);
+    const { width, height, frames } = clip.truth;
+    const start = frames[clip.truth.launchFrame + 2]!;
+    const refFrame = frames.length - 1;
+    const result = await followBall(clip.videoPath, { frame: start.frame, x: start.x, y: start.y }, { captureFps: 60, camera: 'moving', endFrame: 60, referenceFrame: refFrame });
+    expect(result.referenceFrame).toBe(refFrame);
+    expect(result.points.at(-1)!.frame).toBeLessThanOrEqual(60);
+    // The truth's reference is frame 0: carry it on into the last frame's pixels.
+    const toRef = invertRigid(trueMap(frames[refFrame]!, width, height));
+    const errors = result.points.map((p) => {
+      const f = frames[p.frame]!;
+      const r = applyRigid(toRef, f.xRef!, f.yRef!);
+      return Math.hypot(p.xRef - r.x, p.yRef - r.y);
+    });
+    const median = (v: number[]): number => [...v].sort((a, b) => a - b)[v.length >> 1]!;
+    expect(median(errors)).toBeLessThanOrEqual(2);
+    // The camera was tracked on through the last frame, whose own map is the identity.
+    const last = result.camera!.find((m) => m.frame === refFrame)!;
+    expect(Math.hypot(last.tx, last.ty)).toBeLessThan(1e-6);
+    expect(Math.abs(last.rotRad)).toBeLessThan(1e-9);
+  });
+
+  it('refuses a reference frame outside the clip', async () => {
+    const clip = await testClip('panning', CLIP_SPECS.panning as FlightClipSpec);
+    const start = clip.truth.frames[20]!;
+    await expect(followBall(clip.videoPath, { frame: 20, x: start.x, y: start.y }, { camera: 'moving', referenceFrame: 5000 })).rejects.toMatchObject({
+      code: 'VIDEO_BAD_REQUEST',
+      message: expect.stringMatching(/^Reference frame 5000 is outside the clip: its frames are numbered 0 to \d+\.$/),
+    });
+  });
+});
