@@ -20,11 +20,12 @@ import { enqueueRefits } from './refits';
 import { findVisibleClip } from './visibility';
 
 export function toCalibrationDto(cal: Calibration): CalibrationDto {
-  const frame = computeCalibration(cal.input);
+  const { method: _method, ...frame } = computeCalibration(cal.input);
+  // Calibrations stored before the plane method carry no method: they are two-point scales.
+  const input = cal.input.method === 'plane' ? cal.input : { ...cal.input, method: 'scale' as const, level: cal.input.level ?? null };
   return {
-    ...cal.input,
-    level: cal.input.level ?? null,
-    ball: cal.input.ball ?? null,
+    ...input,
+    ball: input.ball ?? null,
     ...frame,
     id: cal.id,
     clipId: cal.clipId,
@@ -83,11 +84,15 @@ function checkNear(clip: Clip, input: CalibrationInput): void {
       fields[path] = `This point (${Math.round(p.xPx)}, ${Math.round(p.yPx)}) lies more than a picture's width or height outside the ${clip.width}×${clip.height} frame, too far to place with any accuracy: mark a nearer point, or a level line on the picture and give its height above the ground.`;
     }
   };
-  check('scale.a', input.scale.a);
-  check('scale.b', input.scale.b);
-  if (input.level) {
-    check('level.a', input.level.a);
-    check('level.b', input.level.b);
+  if (input.method === 'plane') {
+    input.plane.corners.forEach((p, i) => check(`plane.corners.${i}`, p));
+  } else {
+    check('scale.a', input.scale.a);
+    check('scale.b', input.scale.b);
+    if (input.level) {
+      check('level.a', input.level.a);
+      check('level.b', input.level.b);
+    }
   }
   check('origin', input.origin);
   if (input.frame !== null && input.frame !== undefined && clip.frameCount !== null && input.frame >= clip.frameCount) {

@@ -81,6 +81,14 @@ export interface FlightClipSpec {
    * reference frame, and the launch point and ground are given in its pixels.
    */
   pan?: { panPx: number; tiltPx?: number; rollDeg?: number };
+  /**
+   * A still camera turned `yawDeg` about the vertical from square to the plane of flight (the scene's launch,
+   * ground and scale are given in the square-on picture the camera would take at 0°, whose centre it looks
+   * at), with a rectangle of white bars standing in the plane on the ground, `fromXM` to `fromXM + widthM`
+   * along the flight from the launch and `heightM` high. The truth then carries the rectangle's corners and
+   * the ground under the launch in the frame's pixels (`FlightTruth.plane`). Not with `pan`.
+   */
+  tilt?: { yawDeg: number; rectangle: { fromXM: number; widthM: number; heightM: number } };
 }
 
 /** Maps a frame's pixels to the reference frame's: ref = R(rotRad)·(p − c) + c + (dx, dy), c the picture centre. */
@@ -121,6 +129,8 @@ export interface FlightTruth {
   /** First frame at or after the landing instant, or null when the ball lands after the clip. */
   landingFrame: number | null;
   frames: TruthFrame[];
+  /** With a tilted camera: the rectangle's corners (bottom left, bottom right, top right, top left) and the ground under the launch, frame pixels. */
+  plane?: { corners: Array<{ x: number; y: number }>; widthM: number; heightM: number; origin: { x: number; y: number } };
 }
 
 export interface RenderedClip {
@@ -336,8 +346,8 @@ function paintOccluder(frame: Uint8ClampedArray, width: number, height: number, 
 }
 
 /**
- * Takes the camera's picture from the world canvas: frame pixel centre p maps to the world at
- * R(rot)·(p − c) + c + (dx, dy) + (x0, y0); colours are interpolated bilinearly.
+ * Takes the camera's picture from the world canvas: `at(px, py)` gives the world position (continuous
+ * coordinates) that the frame's pixel centre (px, py) shows; colours are interpolated bilinearly.
  */
 function resample(
   src: Uint8ClampedArray,
@@ -346,20 +356,13 @@ function resample(
   dst: Uint8ClampedArray,
   width: number,
   height: number,
-  cam: CameraToReference,
-  x0: number,
-  y0: number,
+  at: (px: number, py: number) => [number, number],
 ): void {
-  const c = Math.cos(cam.rotRad);
-  const s = Math.sin(cam.rotRad);
-  const ox = x0 + cam.dx + width / 2 - 0.5;
-  const oy = y0 + cam.dy + height / 2 - 0.5;
   for (let v = 0; v < height; v++) {
-    const ry = v + 0.5 - height / 2;
     for (let u = 0; u < width; u++) {
-      const rx = u + 0.5 - width / 2;
-      const wx = Math.min(sw - 1.001, Math.max(0, c * rx - s * ry + ox));
-      const wy = Math.min(sh - 1.001, Math.max(0, s * rx + c * ry + oy));
+      const [mx, my] = at(u + 0.5, v + 0.5);
+      const wx = Math.min(sw - 1.001, Math.max(0, mx - 0.5));
+      const wy = Math.min(sh - 1.001, Math.max(0, my - 0.5));
       const ix = Math.floor(wx);
       const iy = Math.floor(wy);
       const fx = wx - ix;
@@ -376,6 +379,74 @@ function resample(
       }
     }
   }
+}
+
+/** A panning camera's frame pixel → world: R(rot)·(p − c) + c + (dx, dy) + (x0, y0), c the picture centre. */
+function rigidToWorld(cam: CameraToReference, width: number, height: number, x0: number, y0: number): (px: number, py: number) => [number, number] {
+  const c = Math.cos(cam.rotRad);
+  const s = Math.sin(cam.rotRad);
+  const ox = x0 + cam.dx + width / 2;
+  const oy = y0 + cam.dy + height / 2;
+  return (px, py) => {
+    const rx = px - width / 2;
+    const ry = py - height / 2;
+    return [c * rx - s * ry + ox, s * rx + c * ry + oy];
+  };
+}
+
+/**
+ * A pinhole camera (Hartley & Zisserman, "Multiple View Geometry in Computer Vision", 2nd ed., 2004, §6.1)
+ * of focal length f pixels, turned θ about the vertical from square to the plane of flight and looking at
+ * the point that the square-on picture shows at its centre c, from the distance at which that picture's
+ * scale holds there at θ = 0. With p = x − cₓ, q = y − c_y in the frame and (X, Y) the square-on picture's
+ * pixels: X − cₓ = f·p / (p·sin θ + f·cos θ), Y − c_y = f·cos θ·q / (p·sin θ + f·cos θ), a homography.
+ */
+function tiltedCamera(yawDeg: number, width: number, height: number) {
+  const t = (yawDeg * Math.PI) / 180;
+  const sin = Math.sin(t);
+  const cos = Math.cos(t);
+  const f = width;
+  const cx = width / 2;
+  const cy = height / 2;
+  return {
+    /** Frame pixel → the square-on picture's pixel. */
+    toPlane(x: number, y: number): [number, number] {
+      const p = x - cx;
+      const w = p * sin + f * cos;
+      return [cx + (f * p) / w, cy + (f * cos * (y - cy)) / w];
+    },
+    /** The square-on picture's pixel → frame pixel (the inverse, solved for p then q). */
+    toFrame(X: number, Y: number): [number, number] {
+      const P = X - cx;
+      const p = (P * f * cos) / (f - P * sin);
+      const w = p * sin + f * cos;
+      return [cx + p, cy + ((Y - cy) * w) / (f * cos)];
+    },
+  };
+}
+
+/** A rectangle of white bars (bottom line, two posts, top bar) centred on the given corners of the world canvas. */
+function paintRectangle(scene: Scene, left: number, right: number, bottom: number, top: number, bar: number): void {
+  const { rgb, width, height } = scene;
+  const fill = (x0: number, y0: number, x1: number, y1: number): void => {
+    for (let y = Math.max(0, Math.round(y0)); y < Math.min(height, Math.round(y1)); y++) {
+      for (let x = Math.max(0, Math.round(x0)); x < Math.min(width, Math.round(x1)); x++) {
+        const p = (y * width + x) * 3;
+        rgb[p] = 238;
+        rgb[p + 1] = 238;
+        rgb[p + 2] = 232;
+      }
+    }
+  };
+  const h = bar / 2;
+  fill(left - h, bottom - h, right + h, bottom + h);
+  fill(left - h, top - h, right + h, top + h);
+  fill(left - h, top - h, left + h, bottom + h);
+  fill(right - h, top - h, right + h, bottom + h);
+}
+
+function add([x, y]: [number, number], dx: number, dy: number): [number, number] {
+  return [x + dx, y + dy];
 }
 
 /** Whether a disk of radius r at (x, y) lies wholly inside the box. */
@@ -479,11 +550,20 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   const panPx = pan?.panPx ?? 0;
   const tiltPx = pan?.tiltPx ?? 0;
   const roll = ((pan?.rollDeg ?? 0) * Math.PI) / 180;
-  const margin = pan ? Math.ceil(Math.abs(roll) * width * 0.6 + 8) : 0;
-  const worldW = width + Math.ceil(Math.abs(panPx)) + 2 * margin;
-  const worldH = height + Math.ceil(Math.abs(tiltPx)) + 2 * margin;
-  const x0 = margin + Math.max(0, -panPx);
-  const y0 = margin + Math.max(0, -tiltPx);
+  // A tilted camera sees more of the plane on its far side: the world canvas covers what the frame's corners show.
+  const tilt = spec.tilt ? tiltedCamera(spec.tilt.yawDeg, width, height) : null;
+  if (tilt && pan) throw new Error('A test clip can have a panning or a tilted camera, not both.');
+  const seen = tilt ? [tilt.toPlane(0, 0), tilt.toPlane(width, 0), tilt.toPlane(0, height), tilt.toPlane(width, height)] : [];
+  const seenX = seen.map(([x]) => x);
+  const seenY = seen.map(([, y]) => y);
+  const margin = pan ? Math.ceil(Math.abs(roll) * width * 0.6 + 8) : tilt ? 8 : 0;
+  const reach = tilt
+    ? { left: Math.ceil(Math.max(0, -Math.min(...seenX))), right: Math.ceil(Math.max(width, ...seenX)) - width, up: Math.ceil(Math.max(0, -Math.min(...seenY))), down: Math.ceil(Math.max(height, ...seenY)) - height }
+    : { left: Math.max(0, -panPx), right: Math.max(0, panPx), up: Math.max(0, -tiltPx), down: Math.max(0, tiltPx) };
+  const worldW = width + Math.ceil(reach.left + reach.right) + 2 * margin;
+  const worldH = height + Math.ceil(reach.up + reach.down) + 2 * margin;
+  const x0 = margin + reach.left;
+  const y0 = margin + reach.up;
   const cameraAt = (t: number): CameraToReference => {
     const u = Math.min(1, Math.max(0, t / durationS));
     const ease = u * u * (3 - 2 * u);
@@ -503,7 +583,13 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
   };
 
   const world = paintScene(worldW, worldH, y0 + groundY, seed, clutter);
-  const scene = pan ? { rgb: new Uint8ClampedArray(width * height * 3), width, height } : world;
+  const rect = spec.tilt?.rectangle;
+  if (rect) {
+    const left = x0 + launchX + rect.fromXM * scale;
+    paintRectangle(world, left, left + rect.widthM * scale, y0 + groundY, y0 + groundY - rect.heightM * scale, Math.max(3, Math.round(0.12 * scale)));
+  }
+  const drawn = pan || tilt;
+  const scene = drawn ? { rgb: new Uint8ClampedArray(width * height * 3), width, height } : world;
   // Sensor noise: a table of roughly normal values (sum of four uniforms), read at a fresh random
   // offset each frame so the noise moves from frame to frame without a random draw per pixel.
   const rand = mulberry32(seed * 7919 + 1);
@@ -556,7 +642,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
 
   const frames: TruthFrame[] = [];
   const frame = new Uint8ClampedArray(scene.rgb.length);
-  const canvas = pan ? new Uint8ClampedArray(world.rgb.length) : frame;
+  const canvas = drawn ? new Uint8ClampedArray(world.rgb.length) : frame;
   const subSamples = exposure > 0 ? 9 : 1;
   const frameInterval = 1 / captureFps;
   let flicker = 0;
@@ -573,7 +659,8 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
     const box = occluderAt(spec, centreAt, y0 + groundY, t);
     if (box) paintOccluder(canvas, worldW, worldH, box);
     const cam = cameraAt(t);
-    if (pan) resample(canvas, worldW, worldH, frame, width, height, cam, x0, y0);
+    if (pan) resample(canvas, worldW, worldH, frame, width, height, rigidToWorld(cam, width, height, x0, y0));
+    else if (tilt) resample(canvas, worldW, worldH, frame, width, height, (px, py) => add(tilt.toPlane(px, py), x0, y0));
     flicker = Math.max(-2, Math.min(2, flicker + (rand() - 0.5)));
     const offset = Math.floor(rand() * noiseLen);
     const mask = noiseLen - 1;
@@ -586,7 +673,7 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
     }
     await write(frame);
     const [wx, wy] = centreAt(t);
-    const [x, y] = pan ? toFrame(cam, wx, wy) : [wx, wy];
+    const [x, y] = pan ? toFrame(cam, wx, wy) : tilt ? tilt.toFrame(wx - x0, wy - y0) : [wx, wy];
     const sinceLaunch = t - launchT;
     const occluded = diskTouches(box, wx, wy, radius);
     frames.push({
@@ -628,6 +715,19 @@ export async function renderFlightClip(videoPath: string, spec: FlightClipSpec):
     landingFrame: landingFrame !== null && landingFrame < frameCount ? landingFrame : null,
     frames,
   };
+  if (tilt && rect) {
+    const at = (xm: number, ym: number) => {
+      const [x, y] = tilt.toFrame(launchX + xm * scale, groundY - ym * scale);
+      return { x, y };
+    };
+    const right = rect.fromXM + rect.widthM;
+    truth.plane = {
+      corners: [at(rect.fromXM, 0), at(right, 0), at(right, rect.heightM), at(rect.fromXM, rect.heightM)],
+      widthM: rect.widthM,
+      heightM: rect.heightM,
+      origin: at(0, 0),
+    };
+  }
   const truthPath = `${videoPath}.truth.json`;
   await writeFile(truthPath, JSON.stringify(truth));
   return { videoPath, truthPath, truth };

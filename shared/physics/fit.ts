@@ -286,7 +286,7 @@ const UNIT_HINTS: { factor: number; hint: string }[] = [
 
 function scaleHint(factor: number): string {
   for (const u of UNIT_HINTS) if (factor > u.factor / 1.15 && factor < u.factor * 1.15) return u.hint;
-  return 'check the calibration (the two reference points and their distance) and the frame rate';
+  return 'check the calibration (the two reference points and their distance, or the rectangle’s corners and size) and the frame rate';
 }
 
 function scaleError(factor: number, how: string, modelHint = ''): PhysicsError {

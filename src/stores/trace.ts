@@ -277,6 +277,8 @@ export const useTraceStore = defineStore('trace', () => {
     refreshFlight,
     setLine: calibration.setLine,
     setOrigin: calibration.setOrigin,
+    setMethod: calibration.setMethod,
+    clearCorners: calibration.clearCorners,
     moveHandle: calibration.moveHandle,
     resetDraft: calibration.resetDraft,
     saveDraft: calibration.saveDraft,

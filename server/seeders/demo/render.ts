@@ -6,7 +6,7 @@
 import { rm } from 'node:fs/promises';
 import { join } from 'node:path';
 import { mulberry32, normalGenerator } from '../../../shared/physics';
-import type { CalibrationInput } from '../../../shared/schemas/calibration';
+import type { ScaleCalibrationInput } from '../../../shared/schemas/calibration';
 import type { TrackPointInput } from '../../../shared/schemas/track';
 import { probeClip, type ClipProbe } from '../../video';
 import { renderFlightClip, type FlightTruth } from '../../video/synth';
@@ -23,7 +23,7 @@ export interface RenderedDemoClip {
   frameStart: number;
   frameEnd: number;
   points: TrackPointInput[];
-  calibration: CalibrationInput;
+  calibration: ScaleCalibrationInput;
 }
 
 /** Known distances a coach would pace out along the ground, longest first (m). */
@@ -33,11 +33,12 @@ const SCALE_DISTANCES_M = [20, 10, 5, 2, 1];
  * The calibration of a rendered clip: a whole number of metres along the ground from the point under
  * the release, a level line across the picture at ground height, and the ball's drawn diameter.
  */
-export function demoCalibration(layout: Pick<ClipLayout, 'launchXPx' | 'groundYPx' | 'pxPerMetre' | 'width' | 'ballRadiusPx'>, ballId: string): CalibrationInput {
+export function demoCalibration(layout: Pick<ClipLayout, 'launchXPx' | 'groundYPx' | 'pxPerMetre' | 'width' | 'ballRadiusPx'>, ballId: string): ScaleCalibrationInput {
   const { launchXPx: x0, groundYPx: y0, pxPerMetre, width } = layout;
   const room = width - 8 - x0;
   const distanceM = SCALE_DISTANCES_M.find((d) => d * pxPerMetre <= room) ?? room / pxPerMetre;
   return {
+    method: 'scale',
     scale: { a: { xPx: x0, yPx: y0 }, b: { xPx: x0 + distanceM * pxPerMetre, yPx: y0 }, distanceM },
     level: { a: { xPx: 8, yPx: y0 }, b: { xPx: width - 8, yPx: y0 } },
     origin: { xPx: x0, yPx: y0 },

@@ -1,12 +1,14 @@
 import { computed, ref, type Ref, type ShallowRef } from 'vue';
 import { computeCalibration } from '@shared/calibration/geometry';
-import type { CalibrationFrame, CalibrationInput } from '@shared/schemas/calibration';
+import type { CalibrationFrame, CalibrationInput, CalibrationMethod } from '@shared/schemas/calibration';
 import { deleteCalibration, saveCalibration, type Clip } from '@/api/clips';
 import type { HandleKey } from './canvas-types';
 import type { Vec2 } from './viewport';
 
 /** The calibration being edited on the Trace screen, in image pixels; saved to the clip with `saveDraft`. */
 export interface CalibrationDraft {
+  /** Two-point scale (camera square to the flight) or the plane's four corners (camera at an angle). */
+  method: CalibrationMethod;
   scale: { a: Vec2; b: Vec2 } | null;
   distanceM: number | null;
   level: { a: Vec2; b: Vec2 } | null;
@@ -15,9 +17,25 @@ export interface CalibrationDraft {
   ballId: string | null;
   /** Height of the origin above the ground (m) when the ground is outside the picture; null or 0: on the ground. */
   groundOffsetM: number | null;
+  /** Plane method: the rectangle's corners as clicked (bottom left, bottom right, top right, top left), and its size (m). */
+  corners: Vec2[];
+  planeWidthM: number | null;
+  planeHeightM: number | null;
 }
 
-const EMPTY_DRAFT: CalibrationDraft = { scale: null, distanceM: null, level: null, origin: null, direction: 'right', ballId: null, groundOffsetM: null };
+const EMPTY_DRAFT: CalibrationDraft = {
+  method: 'scale',
+  scale: null,
+  distanceM: null,
+  level: null,
+  origin: null,
+  direction: 'right',
+  ballId: null,
+  groundOffsetM: null,
+  corners: [],
+  planeWidthM: null,
+  planeHeightM: null,
+};
 
 const vec = (p: { xPx: number; yPx: number }): Vec2 => ({ x: p.xPx, y: p.yPx });
 const px = (p: Vec2) => ({ xPx: p.x, yPx: p.y });
@@ -25,20 +43,22 @@ const px = (p: Vec2) => ({ xPx: p.x, yPx: p.y });
 function draftFromClip(clip: Clip | null): CalibrationDraft {
   const c = clip?.calibration;
   if (!c) return { ...EMPTY_DRAFT };
+  const common = { origin: vec(c.origin), direction: c.direction, ballId: c.ball?.ballId ?? null, groundOffsetM: c.groundOffsetM ?? null };
+  if (c.method === 'plane') {
+    return { ...EMPTY_DRAFT, ...common, method: 'plane', corners: c.plane.corners.map(vec), planeWidthM: c.plane.widthM, planeHeightM: c.plane.heightM };
+  }
   return {
+    ...EMPTY_DRAFT,
+    ...common,
     scale: { a: vec(c.scale.a), b: vec(c.scale.b) },
     distanceM: c.scale.distanceM,
     level: c.level ? { a: vec(c.level.a), b: vec(c.level.b) } : null,
-    origin: vec(c.origin),
-    direction: c.direction,
-    ballId: c.ball?.ballId ?? null,
-    groundOffsetM: c.groundOffsetM ?? null,
   };
 }
 
 /**
  * The clip's calibration on the Trace screen: the saved one's pixel → metre frame, the draft being drawn (scale
- * line, level line, origin, direction), its preview, and saving or removing it.
+ * line and level line, or the plane's four corners; origin, direction), its preview, and saving or removing it.
  */
 export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<number | null>, frameInView: Ref<number>) {
   const draft = ref<CalibrationDraft>({ ...EMPTY_DRAFT });
@@ -53,9 +73,21 @@ export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<n
   /** The draft as an API body, or null while a required part is missing. */
   const draftInput = computed<CalibrationInput | null>(() => {
     const d = draft.value;
-    // A zero or negative distance still makes a body, so the shared schema's message about it shows.
+    // A zero or negative distance or size still makes a body, so the shared schema's message about it shows.
+    if (d.method === 'plane') {
+      if (d.corners.length !== 4 || !d.origin || d.planeWidthM === null || d.planeHeightM === null) return null;
+      return {
+        method: 'plane',
+        plane: { corners: d.corners.map(px), widthM: d.planeWidthM, heightM: d.planeHeightM },
+        origin: px(d.origin),
+        groundOffsetM: d.groundOffsetM,
+        direction: d.direction,
+        ball: null,
+      };
+    }
     if (!d.scale || !d.origin || d.distanceM === null) return null;
     return {
+      method: 'scale',
       scale: { a: px(d.scale.a), b: px(d.scale.b), distanceM: d.distanceM },
       level: d.level ? { a: px(d.level.a), b: px(d.level.b) } : null,
       origin: px(d.origin),
@@ -84,14 +116,31 @@ export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<n
     draft.value = { ...draft.value, origin: p };
   }
 
+  /**
+   * Moves a handle. A plane corner one past the last is a new corner: the coach clicks the four in turn.
+   */
   function moveHandle(key: HandleKey, at: Vec2): void {
     const d = draft.value;
     if (key === 'origin') draft.value = { ...d, origin: at };
-    else {
+    else if (key.startsWith('plane.')) {
+      const i = Number(key.slice('plane.'.length));
+      if (i > d.corners.length) return;
+      const corners = [...d.corners];
+      corners[i] = at;
+      draft.value = { ...d, corners };
+    } else {
       const [which, end] = key.split('.') as ['scale' | 'level', 'a' | 'b'];
       const line = d[which];
       if (line) draft.value = { ...d, [which]: { ...line, [end]: at } };
     }
+  }
+
+  function setMethod(method: CalibrationMethod): void {
+    draft.value = { ...draft.value, method };
+  }
+
+  function clearCorners(): void {
+    draft.value = { ...draft.value, corners: [] };
   }
 
   /** Puts the draft back to the clip's saved calibration (or an empty draft). */
@@ -128,5 +177,5 @@ export function useCalibrationDraft(clip: ShallowRef<Clip | null>, clubId: Ref<n
     draft.value = { ...EMPTY_DRAFT };
   }
 
-  return { draft, draftInput, draftFrame, savedFrame, calibrationSaving, setLine, setOrigin, moveHandle, resetDraft, saveDraft, removeCalibration };
+  return { draft, draftInput, draftFrame, savedFrame, calibrationSaving, setLine, setOrigin, setMethod, clearCorners, moveHandle, resetDraft, saveDraft, removeCalibration };
 }

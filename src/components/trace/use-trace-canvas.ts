@@ -51,13 +51,23 @@ export function useTraceCanvas(trace: ReturnType<typeof useTraceStore>) {
   const overlay = computed<CalibrationOverlay | null>(() => {
     if (panel.value !== 'calibrate') return null;
     const d = trace.draft;
+    if (d.method === 'plane') return { plane: d.corners, origin: d.origin, direction: d.direction };
     return { scale: d.scale, level: d.level, origin: d.origin, direction: d.direction };
   });
 
   watch(panel, (p) => {
     if (p === 'track') trace.mode = 'mark';
+    else if (trace.draft.method === 'plane') trace.mode = trace.draft.corners.length < 4 ? 'plane' : 'view';
     else trace.mode = trace.draft.scale ? 'view' : 'scale';
   });
+
+  // The fourth corner closes the outline; the origin is the next thing the calibration needs.
+  watch(
+    () => trace.draft.corners.length,
+    (n, before) => {
+      if (n === 4 && before === 3 && trace.mode === 'plane' && !trace.draft.origin) trace.mode = 'origin';
+    },
+  );
 
   function onPlace(p: { x: number; y: number; radius: number | null }): void {
     const problem = trace.placeProblem();

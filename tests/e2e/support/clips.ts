@@ -8,6 +8,8 @@ import { pathToFileURL } from 'node:url';
 export interface Truth {
   launchFrame: number;
   frames: { frame: number; x: number; y: number; visible: boolean }[];
+  /** With a tilted camera: the rectangle's corners (bottom left, bottom right, top right, top left) and the ground under the launch. */
+  plane?: { corners: { x: number; y: number }[]; widthM: number; heightM: number; origin: { x: number; y: number } };
 }
 
 /**

@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { ballCheck, computeCalibration, metresToPixel, pixelToMetres } from '../../../shared/calibration/geometry';
-import { calibrationInputSchema, type CalibrationInput } from '../../../shared/schemas/calibration';
+import { calibrationInputSchema, type ScaleCalibrationInput } from '../../../shared/schemas/calibration';
 
-const base: CalibrationInput = {
+const base: ScaleCalibrationInput = {
+  method: 'scale',
   scale: { a: { xPx: 100, yPx: 400 }, b: { xPx: 300, yPx: 400 }, distanceM: 10 },
   origin: { xPx: 100, yPx: 400 },
   direction: 'right',

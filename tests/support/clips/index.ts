@@ -49,6 +49,11 @@ export const CLIP_SPECS = {
   variableRate: { width: 480, height: 270, captureFps: 60, durationS: 1.8, ballRadiusPx: 5, speedMps: 16, angleDeg: 45, seed: 29, timestampJitterS: 0.004 },
   /** A camera turned to follow a long kick: a pan of most of a picture width, a little tilt and a 2° roll. */
   panning: { width: 480, height: 270, captureFps: 60, durationS: 2.4, ballRadiusPx: 5, launchXPx: 100, speedMps: 24, angleDeg: 38, seed: 31, pan: { panPx: 400, tiltPx: -30, rollDeg: 2 } },
+  /**
+   * A still camera turned 30° from square to the plane of flight, with a rectangle of white bars 8 m × 3 m
+   * standing in that plane (for the four-point plane calibration); the far side is on the left.
+   */
+  tilted: { width: 640, height: 360, captureFps: 60, durationS: 2.6, ballRadiusPx: 6, pxPerMetre: 24, launchXPx: 40, speedMps: 16, angleDeg: 40, seed: 37, tilt: { yawDeg: 30, rectangle: { fromXM: 2, widthM: 8, heightM: 3 } } },
   /** A person walks across in front of the ball early in its flight and hides it for a few frames. */
   occluded: { width: 480, height: 270, captureFps: 50, durationS: 2.2, ballRadiusPx: 5, speedMps: 15, angleDeg: 40, seed: 23, occluder: { atS: 0.65, widthPx: 30 } },
 } satisfies Record<string, FlightClipSpec>;
