@@ -12,7 +12,7 @@
  * (1995) 773); and a scale check by a fit that lets gravity float.
  */
 import { reynoldsNumber, dragRegime, standardAir, SMOOTH_SPHERE_CRISIS_RE, type Air, type DragRegime } from './air';
-import { resolveBall, type BallProps } from './balls';
+import { recogniseBall, resolveBall, type BallProps, type BallSpec } from './balls';
 import { STANDARD_GRAVITY } from './constants';
 import { PhysicsError, isPhysicsError, type FlightWarning } from './errors';
 import {
@@ -172,7 +172,11 @@ export interface FitResult {
   scaleCheck: ScaleCheck | null;
   /** BIC of both models (lower is better); `drag` is null when the lift term was decisive (Wald z² − ln m > 27) and the drag fit was skipped. */
   modelSelection: { criterion: 'BIC'; drag: number | null; dragLift: number; chosen: FlightModel } | null;
-  cdPrior: { mean: number; sd: number; used: boolean; source: string } | null;
+  /**
+   * The Gaussian prior on C_d (mean, σ) and whether it was used; `assumedBall` is the catalogue ball whose
+   * range it comes from when the ball was given by mass and diameter alone (null otherwise).
+   */
+  cdPrior: { mean: number; sd: number; used: boolean; source: string; assumedBall: { id: string; name: string } | null } | null;
   warnings: FlightWarning[];
   /** Everything the planner needs to fly this launch again. */
   setup: { launch: Launch; aero: FlightAero; ball: BallProps | null; air: Air; windSpeed: number; gravity: number };
@@ -630,8 +634,13 @@ interface FitStage {
   init: InitialGuess;
   /** Whether the loss is robust (anything but `linear`). */
   robust: boolean;
-  /** The ball's C_d range, or the generic one, and its midpoint: the start and the prior's mean. */
+  /**
+   * The ball's C_d range, else that of the catalogue ball its mass and diameter match, else the
+   * generic one, and its midpoint: the start and the prior's mean.
+   */
   cdRange: { min: number; max: number };
+  /** The catalogue ball recognised from a mass and diameter given without a C_d range. */
+  assumedBall: BallSpec | null;
   cd0: number;
   /** x₀ (m), y₀ (m), vₓ₀ (m/s), v_y₀ (m/s) of the smoothing polynomials. */
   launch0: number[];
@@ -742,11 +751,12 @@ function stageFit(track: Track, options: FitOptions): FitStage {
   if (!o.allowDescending && init.vy0 <= 0 && maxRise <= 3 * init.noise) {
     throw new PhysicsError('NEVER_RISES', 'The ball never rises: no traced point is above the first one. Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
   }
-  const cdRange = ball?.cdRange ?? GENERIC_CD_RANGE;
+  const assumedBall = ball && !ball.cdRange ? recogniseBall(ball.massKg, ball.diameterM) : null;
+  const cdRange = ball?.cdRange ?? (assumedBall ? { min: assumedBall.cd.min, max: assumedBall.cd.max } : GENERIC_CD_RANGE);
   return {
     o, prep, n, ball, air, kappa, base, init,
     robust: o.loss !== 'linear',
-    cdRange,
+    cdRange, assumedBall,
     cd0: 0.5 * (cdRange.min + cdRange.max),
     launch0: [init.x0, init.y0, init.vx0, init.vy0],
     warnings,
@@ -846,10 +856,14 @@ function chooseModel(s: FitStage): { chosen: Run; selection: FitResult['modelSel
  */
 function applyCdPrior(s: FitStage, chosen: Run): { chosen: Run; cdPrior: FitResult['cdPrior'] } {
   if (chosen.config.model !== 'drag' && chosen.config.model !== 'drag-lift') return { chosen, cdPrior: null };
-  const { cdRange, ball, n } = s;
+  const { cdRange, ball, n, assumedBall } = s;
   const mean = s.cd0, sd = (cdRange.max - cdRange.min) / 4;
-  const source = ball?.cdRange ? `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}` : `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
-  const cdPrior = { mean, sd, used: false, source };
+  let source: string;
+  if (ball?.cdRange) source = `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}`;
+  else if (ball && assumedBall) {
+    source = `the typical range ${cdRange.min}–${cdRange.max} for ${assumedBall.name} (the ball was assumed to be one: its ${fmtNum(ball.massKg, 4)} kg and ${fmtNum(ball.diameterM, 4)} m lie within that ball's rulebook ranges; pick the ball, or give its C_d range, if it is another)`;
+  } else source = `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
+  const cdPrior = { mean, sd, used: false, source, assumedBall: assumedBall ? { id: assumedBall.id, name: assumedBall.name } : null };
   if (s.o.cdPrior === 'off') return { chosen, cdPrior };
   const { cov } = covarianceOf(chosen, n);
   const iCd = chosen.names.indexOf('cd');
