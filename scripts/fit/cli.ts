@@ -2,7 +2,7 @@
  * The `fit` command: fit traced flights from CSV files and print one JSON object per file per line.
  * Kept apart from `scripts/fit.ts` (which only wires the process) so tests can run it in-process.
  */
-import { readFile } from 'node:fs/promises';
+import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import {
   airFromConditions, airFromDensity, BALLS, BALL_IDS, CELSIUS_ZERO_K, ENGINE_VERSION, fitFlight, isPhysicsError, resolveBall,
@@ -199,6 +199,16 @@ function parse(argv: string[]): { files: string[]; defaults: Defaults; help: boo
   return { files: parsed.positionals, defaults, help: false, balls: false };
 }
 
+/**
+ * The value of `make` for a key, made once per run: files of one session share their ball and air,
+ * and the CIPM-2007 density need not be computed again for each.
+ */
+function memo<T>(cache: Map<string, T>, key: string, make: () => T): T {
+  let v = cache.get(key);
+  if (v === undefined && !cache.has(key)) { v = make(); cache.set(key, v); }
+  return v as T;
+}
+
 function ballFor(meta: TrackMeta, d: Defaults): BallProps | undefined {
   if (meta.ball !== undefined) return resolveBall(meta.ball);
   if (meta.massKg !== undefined || meta.diameterM !== undefined) {
@@ -241,7 +251,10 @@ export async function runFitCli(argv: string[], io: CliIo): Promise<number> {
     }
     return 0;
   }
-  const read = io.readFile ?? ((p: string) => readFile(p, 'utf8'));
+  // Note: a synchronous read per file; the files are read one after another anyway, and awaiting the
+  // thread pool four times per file (open, stat, read, close) cost more than the read itself.
+  const read = io.readFile ?? ((p: string) => readFileSync(p, 'utf8'));
+  const balls = new Map<string, BallProps | undefined>(), airs = new Map<string, Air | undefined>();
   let failed = 0;
   for (const file of opts.files) {
     try {
@@ -252,8 +265,8 @@ export async function runFitCli(argv: string[], io: CliIo): Promise<number> {
         throw new Error(`cannot read the file (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
       }
       const { track, meta } = parseFitTrackCsv(text);
-      const ball = ballFor(meta, opts.defaults);
-      const air = airFor(meta, opts.defaults);
+      const ball = memo(balls, JSON.stringify([meta.ball, meta.massKg, meta.diameterM]), () => ballFor(meta, opts.defaults));
+      const air = memo(airs, JSON.stringify([meta.airDensityKgM3, meta.temperatureC, meta.pressurePa, meta.humidityPct, meta.altitudeM]), () => airFor(meta, opts.defaults));
       const fit = fitFlight(track, {
         model: opts.defaults.model, ball, air, windSpeed: meta.windAlongFlightMps ?? opts.defaults.wind,
         loss: opts.defaults.loss, allowDescending: opts.defaults.descending,

@@ -20,7 +20,7 @@ import {
   type FlightAero, type FlightModel, type FlightSummary, type Launch, type MotionCoefficients, type SensitivityParam,
 } from './flight';
 import { integrate } from './integrator';
-import { spdInverse, polyFit } from './linalg';
+import { cholesky, choleskySolve, spdInverse, polyFit } from './linalg';
 import { gaussNewtonStep, levenbergMarquardt, type LmOptions, type LmProblem, type LmResult, type LmStopReason, type RobustLoss } from './lm';
 import {
   checkReleaseHeight, traceBackToRelease, RELEASE_MAX_BACK_S, RELEASE_WARN_FRAMES, RELEASE_WARN_S, type ReleasePoint, type ReleaseSpec,
@@ -529,7 +529,7 @@ function sandwich(a: Float64Array, m: Float64Array, np: number): Float64Array {
  * The point-to-point correlation φ of the track's errors, from the residuals' lag-1 autocorrelation
  * corrected for what the fit absorbs: residuals are ê = Mε with M = I − H, H = JAJᵀ, so under AR(1)
  * errors E[Σ êᵢêᵢ₊₁] / E[Σ êᵢ²] = S(MΣ_φM) / tr(MΣ_φM) (S the lag-1 sum within each coordinate);
- * φ solves this equal to the observed ratio (bisection on 0…0.98; the ratio grows with φ). The
+ * φ solves this equal to the observed ratio (regula falsi on 0…0.98; the ratio grows with φ). The
  * variance follows from E[Σ êᵢ²] = σ²(tr Σ_φ − tr(A·JᵀΣ_φJ)).
  * @param run the fit; @param n points; @param a (JᵀWJ + P)⁻¹ unscaled; @param np parameters.
  * @returns φ (0 when the residuals show no correlation beyond what the fit itself makes) and σ² (m²).
@@ -579,17 +579,23 @@ function residualCorrelation(run: Run, n: number, a: Float64Array, np: number): 
   };
   const at0 = expected(0);
   if (observed <= at0.ratio) return { phi: 0, s2: ee / Math.max(at0.trace, 1) };
-  let lo = 0, hi = 0.98;
-  if (expected(hi).ratio <= observed) lo = hi;
-  else {
-    // 12 halvings leave φ within 2.4e-4, far below what the track can tell.
-    for (let it = 0; it < 12; it++) {
-      const mid = 0.5 * (lo + hi);
-      if (expected(mid).ratio < observed) lo = mid; else hi = mid;
-    }
+  const PHI_MAX = 0.98;
+  const atMax = expected(PHI_MAX);
+  if (atMax.ratio <= observed) return { phi: PHI_MAX, s2: ee / Math.max(atMax.trace, 1) };
+  // The root of ratio(φ) − observed by the Illinois variant of regula falsi (Dowell & Jarratt, BIT 11
+  // (1971) 168): the ratio is smooth and nearly linear in φ, so a few evaluations bring φ within 1e-4,
+  // far below what the track can tell, where bisection took 12.
+  let lo = 0, fLo = at0.ratio - observed, hi = PHI_MAX, fHi = atMax.ratio - observed;
+  let phi = lo, at = at0, side = 0;
+  for (let it = 0; it < 30; it++) {
+    const c = hi - (fHi * (hi - lo)) / (fHi - fLo);
+    const ec = expected(c), fc = ec.ratio - observed;
+    const moved = Math.abs(c - phi);
+    phi = c; at = ec;
+    if (fc === 0 || moved < 1e-5 || hi - lo < 1e-4) break;
+    if (fc < 0) { lo = c; fLo = fc; if (side === -1) fHi *= 0.5; side = -1; } else { hi = c; fHi = fc; if (side === 1) fLo *= 0.5; side = 1; }
   }
-  const phi = lo;
-  return { phi, s2: ee / Math.max(expected(phi).trace, 1) };
+  return { phi, s2: ee / Math.max(at.trace, 1) };
 }
 
 function stdErr(cov: Float64Array | null, np: number, i: number): number | null {
@@ -794,7 +800,7 @@ function runFit(s: FitStage, cfg: Config, start: number[], lmOptions: LmOptions 
 
 /**
  * A model fitted in two runs: plain least squares from the start, loosely converged (ftol 1e-4,
- * integration at rtol ≥ 1e-7, which saves a third of its steps), then the fit's own loss from
+ * integration at rtol ≥ 1e-6, which saves half of its steps; only its end point is kept), then the fit's own loss from
  * there with its scale adapted on the way.
  * Note: a robust loss far from the solution has almost no curvature along the residuals and sends
  * the first steps wild (measured: v 22 → 84 m/s, C_d → −0.48); and a launch-only first run is
@@ -803,8 +809,29 @@ function runFit(s: FitStage, cfg: Config, start: number[], lmOptions: LmOptions 
  * @returns the second run.
  */
 function stagedFit(s: FitStage, cfg: Config, start: number[]): Run {
-  const stage = runFit(s, cfg, start, { loss: 'linear', ftol: 1e-4 }, Math.max(s.o.rtol, 1e-7));
+  const stage = runFit(s, cfg, start, { loss: 'linear', ftol: 1e-4 }, Math.max(s.o.rtol, 1e-6));
   return runFit(s, cfg, Array.from(stage.lm.p), s.robust ? { adaptScale: s.adaptScale } : {});
+}
+
+/**
+ * Start of the drag fit from the drag-lift fit: the minimum of the drag-lift fit's quadratic model
+ * of the cost with C_L held at 0, p = p̂ + H_pp⁻¹H_pc·Ĉ_L (H its JᵀWJ, p the other parameters):
+ * the drag fit then starts next to its own minimum instead of where the lift term had moved it.
+ * @param dl the drag-lift run (parameters x₀, y₀, vₓ₀, v_y₀, C_d, C_L).
+ * @returns x₀, y₀ (m), vₓ₀, v_y₀ (m/s), C_d; the drag-lift values themselves when H_pp is singular.
+ */
+function dragStartFrom(dl: Run): number[] {
+  const p = Array.from(dl.lm.p).slice(0, 5);
+  const np = dl.names.length, m = 5, iCl = dl.names.indexOf('cl');
+  const h = dl.lm.jtwj;
+  const hpp = new Float64Array(m * m), rhs = new Float64Array(m);
+  for (let a = 0; a < m; a++) {
+    for (let b = 0; b < m; b++) hpp[a * m + b] = h[a * np + b];
+    rhs[a] = h[a * np + iCl] * dl.lm.p[iCl];
+  }
+  if (!cholesky(hpp, m)) return p;
+  choleskySolve(hpp, m, rhs);
+  return p.map((v, a) => v + rhs[a]);
 }
 
 /**
@@ -836,7 +863,7 @@ function chooseModel(s: FitStage): { chosen: Run; selection: FitResult['modelSel
   }
   let drag: Run;
   try {
-    drag = runFit(s, plainConfig('drag'), Array.from(dl.lm.p).slice(0, 5), { adaptScale: robust ? s.adaptScale : undefined });
+    drag = runFit(s, plainConfig('drag'), dragStartFrom(dl), { adaptScale: robust ? s.adaptScale : undefined });
   } catch (e) {
     // The drag-lift fit wandered somewhere the drag model cannot start from: start afresh.
     if (!isPhysicsError(e)) throw e;
@@ -939,6 +966,52 @@ function checkRelease(s: FitStage, chosen: Run, release: ReleasePoint): void {
 }
 
 /**
+ * The chosen run's problem with gravity free, at the chosen run's parameters only: its residuals and
+ * Jacobian there are the run's own, so only the gravity column ∂(x, y)/∂g is integrated (the state
+ * and one variational column instead of all of them; the same steps, since only the state controls
+ * them). Without air the column is (0, −t²/2).
+ * @param s the fit's shared state; @param chosen the kept run; @param gCfg its configuration with gravity free.
+ * @returns a problem that answers for the chosen parameters with gravity appended (m/s²), and fails elsewhere.
+ */
+function withGravityColumn(s: FitStage, chosen: Run, gCfg: Config): LmProblem {
+  const { prep, n } = s;
+  const np = chosen.names.length, npG = np + 1;
+  const nRes = chosen.lm.r.length;
+  const col = new Float64Array(2 * n);
+  const model = chosen.config.model;
+  let ok = true;
+  if (model === 'vacuum') {
+    for (let k = 0; k < n; k++) col[2 * k + 1] = -0.5 * prep.tau[k] * prep.tau[k];
+  } else {
+    const p = chosen.lm.p;
+    const out = new Float64Array(n * 8);
+    try {
+      integrate(flightRhs(coefficientsOf(s, chosen), s.kappa, ['g']), 0, initialState(p[0], p[1], p[2], p[3], ['g']), {
+        tEnd: prep.tau[n - 1], rtol: s.o.rtol, atol: s.o.rtol, errorDim: 4, outputTimes: prep.tau, output: out, maxSteps: 5000,
+      });
+      for (let k = 0; k < n; k++) { col[2 * k] = out[8 * k + 4]; col[2 * k + 1] = out[8 * k + 5]; }
+    } catch (e) {
+      if (!isPhysicsError(e)) throw e;
+      ok = false;
+    }
+  }
+  return {
+    nParams: npG, nResiduals: nRes, robustResiduals: 2 * n, groupSize: 2,
+    evaluate(_p, r, J) {
+      if (!ok || gCfg.model !== model) return false;
+      r.set(chosen.lm.r);
+      if (J) {
+        for (let i = 0; i < nRes; i++) {
+          for (let a = 0; a < np; a++) J[i * npG + a] = chosen.lm.J[i * np + a];
+          J[i * npG + np] = i < 2 * n ? col[i] : 0;
+        }
+      }
+      return true;
+    },
+  };
+}
+
+/**
  * Scale check: the chosen model with gravity free, started from the fit, gives the factor
  * g_fitted / g and its standard error. Near a consistent scale one Gauss–Newton step settles it
  * (g enters almost linearly over a few per cent), and so it does when gravity is too poorly
@@ -959,7 +1032,7 @@ function checkScale(s: FitStage, chosen: Run): ScaleCheck | null {
   const gCfg: Config = { ...chosen.config, freeG: true };
   const iG = paramNames(gCfg).indexOf('g');
   const start = [...Array.from(p), o.gravity];
-  const step = gaussNewtonStep(makeProblem(s.prep, gCfg, s.base, s.kappa, o.rtol), start, { loss: o.loss, lossScale: s.lossScale });
+  const step = gaussNewtonStep(withGravityColumn(s, chosen, gCfg), start, { loss: o.loss, lossScale: s.lossScale });
   s.evaluations++;
   let factor = NaN, gErr: number | null = null;
   if (step) {
