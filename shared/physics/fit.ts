@@ -50,7 +50,7 @@ export interface FitOptions {
   cdPrior?: 'auto' | 'always' | 'off';
   /** Accept a track that never rises (downward serve, spike): apex becomes the release. Default false. */
   allowDescending?: boolean;
-  /** Tolerance of the integration inside the fit (default 1e-9: m and m/s, relative). */
+  /** Tolerance of the integration inside the fit (default 1e-8: m and m/s, relative). */
   rtol?: number;
   /** Iteration limit per least-squares run (default 100). */
   maxIterations?: number;
@@ -72,7 +72,7 @@ export const FIT_DEFAULTS = {
   scaleCheck: true,
   cdPrior: 'auto' as 'auto' | 'always' | 'off',
   allowDescending: false,
-  rtol: 1e-9,
+  rtol: 1e-8,
   maxIterations: 100,
 } as const;
 
