@@ -16,7 +16,7 @@ import { recogniseBall, resolveBall, type BallProps, type BallSpec } from './bal
 import { STANDARD_GRAVITY } from './constants';
 import { PhysicsError, isPhysicsError, type FlightWarning } from './errors';
 import {
-  acceleration, dragFactor, flightRhs, flyToGround, initialState, summarize, summaryOf, samplePath,
+  acceleration, dragFactor, flightRhs, flyToGround, initialState, summarize, summaryOf, samplePath, SIMULATE_DEFAULTS,
   type FlightAero, type FlightModel, type FlightSummary, type Launch, type MotionCoefficients, type SensitivityParam,
 } from './flight';
 import { integrate } from './integrator';
@@ -1115,21 +1115,24 @@ function estimateUncertainty(s: FitStage, chosen: Run, release: ReleasePoint): F
   const beta = idx('beta') >= 0 ? p[idx('beta')] : null;
   const coeffs: MotionCoefficients = { model, k: kappa * (cd ?? 0), kl: kappa * (cl ?? 0), beta: beta ?? 0, g: o.gravity, wind: o.windSpeed };
   const sens = sensList(names);
+  // The flight to the ground at the simulator's tolerance (or the fit's, when tighter), so that the
+  // reported flight is the one the planner and the charts fly again from the same launch.
+  const derivedRtol = Math.min(o.rtol, SIMULATE_DEFAULTS.rtol);
   let derived: ReturnType<typeof derivedWithErrors>, std: ReturnType<typeof derivedWithErrors>;
   const stdAir = standardAir();
   const stdKappa = ball ? dragFactor(ball, stdAir) : 0;
   try {
-    derived = derivedWithErrors(coeffs, kappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
+    derived = derivedWithErrors(coeffs, kappa, x0, y0, vx0, vy0, sens, cov, np, derivedRtol);
     const stdBeta = beta === null ? 0 : (beta * stdAir.viscosityPaS) / air.viscosityPaS;
     const stdCoeffs: MotionCoefficients = { model, k: stdKappa * (cd ?? 0), kl: stdKappa * (cl ?? 0), beta: stdBeta, g: STANDARD_GRAVITY, wind: 0 };
-    std = derivedWithErrors(stdCoeffs, stdKappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
+    std = derivedWithErrors(stdCoeffs, stdKappa, x0, y0, vx0, vy0, sens, cov, np, derivedRtol);
   } catch (e) {
     if (!isPhysicsError(e) || (e.code !== 'INTEGRATION_FAILED' && e.code !== 'NO_LANDING')) throw e;
     const what = [cd !== null ? `C_d ${fmtNum(cd, 2)}` : '', cl !== null ? `C_L ${fmtNum(cl, 2)}` : '', beta !== null ? `drag rate ${fmtNum(beta, 2)}/s` : ''].filter(Boolean).join(', ');
     throw new PhysicsError('FIT_FAILED', `The fitted ${model} flight (${what || 'no air'}) does not come down to the ground: the points may not be one ball's flight, or the scale or timing is far off. Check the trace and the calibration, or try another model.`);
   }
   const flight = derived.summary;
-  const vac = summarize({ model: 'vacuum', k: 0, kl: 0, beta: 0, g: o.gravity, wind: 0 }, 0, x0, y0, vx0, vy0, o.rtol);
+  const vac = summarize({ model: 'vacuum', k: 0, kl: 0, beta: 0, g: o.gravity, wind: 0 }, 0, x0, y0, vx0, vy0, derivedRtol);
 
   const speed = Math.hypot(vx0, vy0);
   const gradSpeed = new Float64Array(np), gradAngle = new Float64Array(np);
@@ -1151,7 +1154,7 @@ function estimateUncertainty(s: FitStage, chosen: Run, release: ReleasePoint): F
   if (ball) {
     reynolds = reynoldsNumber(vAir, ball.diameterM, air);
     regime = dragRegime(reynolds, ball.crisisReynolds).regime;
-    reynoldsRange = reynoldsOverFlight(coeffs, kappa, release, flight.flightTime, ball.diameterM, air, o.rtol);
+    reynoldsRange = reynoldsOverFlight(coeffs, kappa, release, flight.flightTime, ball.diameterM, air, derivedRtol);
     // The crisis matters when the flight's own Reynolds numbers reach into the ball's band, not when launch is merely near it.
     const [lo, hi] = ball.crisisReynolds ?? SMOOTH_SPHERE_CRISIS_RE;
     nearDragCrisis = reynoldsRange.max >= lo && reynoldsRange.min <= hi;

@@ -136,6 +136,14 @@ export function flyKernel(c: MotionCoefficients, x0: number, y0: number, vx0: nu
       rejected++;
       continue;
     }
+    // A ball launched from the ground must leave it within the first step: a borrowed first step long
+    // enough to come down again would hide the landing (the event needs y > 0 before it).
+    if (steps === 0 && hStart > 0 && y <= 0 && yn <= 0) {
+      h *= 0.1;
+      lastRejected = true;
+      rejected++;
+      continue;
+    }
     facOld = Math.max(err, 1e-4);
     steps++;
     if (steps <= 3) hSettled = h;

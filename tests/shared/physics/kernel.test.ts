@@ -56,6 +56,16 @@ describe('flyKernel', () => {
     expect(Math.abs(warm.landing.t - cold.landing.t)).toBeLessThan(1e-7);
   });
 
+  it('still finds the landing of a ball launched from the ground when the borrowed first step is longer than the flight', () => {
+    // A grazing kick along the ground: 14 m/s at 1.33°, in the air for about 0.07 s.
+    const [, c] = cases[0];
+    const th = (1.3333 * Math.PI) / 180;
+    const cold = flyKernel(c, 0, 0, 14 * Math.cos(th), 14 * Math.sin(th), 1e-8, true, 120);
+    const warm = flyKernel(c, 0, 0, 14 * Math.cos(th), 14 * Math.sin(th), 1e-8, true, 120, 1.1 * cold.landing.t);
+    expect(Math.abs(warm.landing.t - cold.landing.t)).toBeLessThan(1e-7);
+    expect(Math.abs(warm.landing.x - cold.landing.x)).toBeLessThan(1e-6);
+  });
+
   it('reports no apex for a ball launched downward', () => {
     const f = flyKernel(cases[0][1], 0, 2.5, 20, -3, 1e-8, true, 120);
     expect(f.apex).toBeNull();
