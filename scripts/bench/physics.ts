@@ -5,13 +5,17 @@
  * `odex`). Also the `ml-levenberg-marquardt` comparison cited in shared/physics/lm.ts.
  * Run: `npx tsx scripts/bench.ts physics` (or `npm run bench`). Prints figures; asserts nothing.
  */
-import { cpus, loadavg } from 'node:os';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { cpus, loadavg, tmpdir } from 'node:os';
+import { join } from 'node:path';
 import {
-  airFromConditions, ballProps, fitFlight, generateTrack, planFlight, plannerGrid, PLANNER_RTOL, simulateFlight,
+  airFromConditions, ballProps, FIT_DEFAULTS, fitFlight, generateTrack, mulberry32, planFlight, plannerGrid, PLANNER_RTOL, simulateFlight,
   type FitOptions, type FlightSetup, type SyntheticTrackSpec,
 } from '../../shared/physics/index';
 import { flightRhs, flyToGround, initialState, motionCoefficients, type MotionCoefficients } from '../../shared/physics/flight';
 import { integrate } from '../../shared/physics/integrator';
+import { formatTrackCsv } from '../../shared/tracks/csv';
+import { runFitCli } from '../fit/cli';
 import { fitDragWithMlLm, odexStates } from '../fit/reference';
 
 const air = airFromConditions({ airTemperatureK: 288.15, airPressurePa: 101325, relativeHumidityPct: 50 });
@@ -79,11 +83,57 @@ function benchFits(): void {
   }
 }
 
+/** Target of the 61 × 61 carry grid (ms CPU). */
+const GRID_TARGET_MS = 15;
+/** Target of the `fit` command per file on `--model auto`, start-up removed (ms). */
+const FIT_COMMAND_TARGET_MS = 1;
+
+/**
+ * The `fit` command as analysts run it, in this process (start-up removed): 120 files of kicks of the
+ * demo scenario (60 fps, 2 cm noise, a third with backspin), `--model auto`, reading, parsing, fitting
+ * and printing each; the figure is the median over 7 passes after 2 warm-up passes.
+ */
+async function benchFitCommand(): Promise<void> {
+  const dir = mkdtempSync(join(tmpdir(), 'arcwright-fit-bench-'));
+  try {
+    const rnd = mulberry32(7);
+    const files: string[] = [];
+    for (let i = 0; i < 120; i++) {
+      const lift = i % 3 === 0;
+      const cd = 0.22 + 0.08 * rnd();
+      const track = generateTrack({
+        launch: { speed: 15 + 17 * rnd(), angleDeg: 20 + 35 * rnd(), height: 0.1 + rnd() }, ball: 'football-5', air,
+        aero: lift ? { model: 'drag-lift', cd, cl: 0.05 + 0.1 * rnd() } : { model: 'drag', cd }, fps: 60, noise: 0.02, seed: 1000 + i,
+      });
+      const file = join(dir, `kick-${String(i).padStart(3, '0')}.csv`);
+      writeFileSync(file, formatTrackCsv(track, { ball: 'football-5', temperatureC: 15, pressurePa: 101325, humidityPct: 50 }));
+      files.push(file);
+    }
+    const wall: number[] = [], cpu: number[] = [];
+    let failed = 0;
+    for (let pass = 0; pass < 9; pass++) {
+      let lines = 0;
+      const c0 = process.cpuUsage();
+      const t0 = performance.now();
+      const status = await runFitCli(['--model', 'auto', ...files], { out: () => { lines++; }, err: () => {} });
+      const w = performance.now() - t0, c = process.cpuUsage(c0);
+      if (status !== 0 || lines !== files.length) failed++;
+      if (pass >= 2) { wall.push(w / files.length); cpu.push((c.user + c.system) / 1000 / files.length); }
+    }
+    const ms = median(wall);
+    console.log('\nThe fit command, --model auto, 120 files of 60 fps kicks (in-process: start-up removed; median of 7 passes):');
+    console.log(`per file                  CPU ${f3(median(cpu))} ms, wall ${f3(ms)} ms   (target ≤ ${FIT_COMMAND_TARGET_MS} ms): ${ms <= FIT_COMMAND_TARGET_MS ? 'met' : 'NOT met'}${failed ? `; ${failed} passes had failing files` : ''}`);
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
 function benchPlanner(): void {
   const setup: FlightSetup = { launch: { speed: 28, angleDeg: 35, height: 0.2 }, ball: 'football-5', air, aero: { model: 'drag-lift', cd: 0.25, cl: 0.1 } };
   const speed = { min: 5, max: 40 }, angle = { min: 0, max: 70 };
   plannerGrid(setup, speed, angle);
-  const grid = Array.from({ length: 9 }, () => timed(() => plannerGrid(setup, speed, angle)));
+  for (let i = 0; i < 4; i++) plannerGrid(setup, speed, angle);
+  const grid = Array.from({ length: 15 }, () => timed(() => plannerGrid(setup, speed, angle)));
   // Single flights are too short for the CPU clock's resolution: time batches of 100.
   const batches: { wall: number; cpu: number }[] = [];
   for (let b = 0; b < 30; b++) {
@@ -91,7 +141,8 @@ function benchPlanner(): void {
     if (b >= 5) batches.push({ wall: t.wall / 100, cpu: t.cpu / 100 });
   }
   console.log('\nPlanner (drag-lift football; CPU = process CPU time):');
-  console.log(`61 × 61 carry grid        CPU ${f3(median(grid.map((g) => g.cpu)))} ms, wall ${f3(median(grid.map((g) => g.wall)))} ms   (target < 50 ms)`);
+  const gridCpu = median(grid.map((g) => g.cpu));
+  console.log(`61 × 61 carry grid        CPU ${f3(gridCpu)} ms, wall ${f3(median(grid.map((g) => g.wall)))} ms   (target ≤ ${GRID_TARGET_MS} ms): ${gridCpu <= GRID_TARGET_MS ? 'met' : 'NOT met'}`);
   console.log(`one what-if flight        CPU ${f3(median(batches.map((b) => b.cpu)))} ms, wall ${f3(median(batches.map((b) => b.wall)))} ms   (target < 0.2 ms)`);
 
   // Accuracy of the grid at PLANNER_RTOL against the engine at 1e-12.
@@ -122,7 +173,7 @@ function benchAccuracy(): void {
     integrate(flightRhs(c, kappa), 0, s0, { tEnd: times[times.length - 1], rtol, atol: rtol, outputTimes: times, output: out });
     return out;
   };
-  const fast = at(1e-9), careful = at(1e-13);
+  const fast = at(FIT_DEFAULTS.rtol), careful = at(1e-13);
   const odex = odexStates(c, s0, times, 1e-13);
   let dCareful = 0, dOdex = 0, dRef = 0;
   for (let k = 0; k < times.length; k++) for (let i = 0; i < 2; i++) {
@@ -130,10 +181,10 @@ function benchAccuracy(): void {
     dOdex = Math.max(dOdex, Math.abs(fast[4 * k + i] - odex[k][i]));
     dRef = Math.max(dRef, Math.abs(careful[4 * k + i] - odex[k][i]));
   }
-  console.log(`model positions at rtol 1e-9: max ${sci(dCareful)} m from the engine at 1e-13, ${sci(dOdex)} m from odex at 1e-13 (the two references differ by ${sci(dRef)} m)`);
+  console.log(`model positions at rtol ${FIT_DEFAULTS.rtol}: max ${sci(dCareful)} m from the engine at 1e-13, ${sci(dOdex)} m from odex at 1e-13 (the two references differ by ${sci(dRef)} m)`);
   const tight = fitFlight(track, { ...CASES[2].options, rtol: 1e-12 });
   const shift = (a: number, b: number, s: number | null) => Math.abs(a - b) / (s ?? 1);
-  console.log(`fitted parameters, rtol 1e-9 vs 1e-12: C_d moves ${sci(shift(fit.cd!, tight.cd!, fit.cdError))} σ, launch speed ${sci(shift(fit.launch.speed, tight.launch.speed, fit.launch.speedError))} σ, carry ${sci(Math.abs(fit.flight.carry - tight.flight.carry))} m`);
+  console.log(`fitted parameters, rtol ${FIT_DEFAULTS.rtol} vs 1e-12: C_d moves ${sci(shift(fit.cd!, tight.cd!, fit.cdError))} σ, launch speed ${sci(shift(fit.launch.speed, tight.launch.speed, fit.launch.speedError))} σ, carry ${sci(Math.abs(fit.flight.carry - tight.flight.carry))} m`);
   console.log(`recovery: C_d ${fit.cd!.toFixed(4)} ± ${fit.cdError!.toFixed(4)} (true 0.25), speed ${fit.launch.speed.toFixed(3)} ± ${fit.launch.speedError!.toFixed(3)} m/s (true 28)`);
   let worst = 0;
   for (const c of CASES.slice(1)) {
@@ -175,6 +226,7 @@ function benchMlLm(): void {
 export async function run(): Promise<void> {
   console.log(`Node ${process.version}, ${cpus().length} cores (${cpus()[0]?.model ?? 'unknown CPU'}), load average ${loadavg()[0].toFixed(2)}: figures are single-threaded; other load inflates them.`);
   benchFits();
+  await benchFitCommand();
   benchPlanner();
   benchAccuracy();
   benchMlLm();

@@ -2,7 +2,7 @@
  * Video bench (`npx tsx scripts/bench.ts video`, part of `npm run bench`): seconds to probe,
  * extract frames from and auto-follow a generated 10 s 1080p 60 fps clip, beside the seconds
  * ffmpeg alone needs to decode it (`ffmpeg -i CLIP -f null -`). Target: probe + extract + follow
- * at most twice the decode time. The clip is generated once into `.data/bench/` (about a minute)
+ * at most 1.5 times the decode time. The clip is generated once into `.data/bench/` (about a minute)
  * and reused while the generator is unchanged. Each figure is the fastest of three runs.
  */
 import { createHash } from 'node:crypto';
@@ -78,6 +78,9 @@ async function timed<T>(fn: () => Promise<T>): Promise<[T, Timing]> {
   return [value, { wallS: Number(process.hrtime.bigint() - t0) / 1e9, cpuS: cpuSeconds() - c0 }];
 }
 
+/** Target: probe + extract + follow within this multiple of ffmpeg's bare decode of the same clip. */
+const VIDEO_TARGET_RATIO = 1.5;
+
 /** Each measurement is repeated and the fastest run kept, so that other load on the machine counts less. */
 const RUNS = 3;
 
@@ -127,6 +130,6 @@ export async function run(): Promise<void> {
   console.log(row('auto-follow', follow));
   console.log(row('probe + extract + follow', sum));
   console.log(row('ffmpeg decode alone', decode));
-  console.log(`  ratio ${(sum.wallS / decode.wallS).toFixed(2)} (target ≤ 2.00): ${sum.wallS <= 2 * decode.wallS ? 'met' : 'NOT met'}; CPU ratio ${(sum.cpuS / decode.cpuS).toFixed(2)}`);
+  console.log(`  ratio ${(sum.wallS / decode.wallS).toFixed(2)} (target ≤ ${VIDEO_TARGET_RATIO.toFixed(2)}): ${sum.wallS <= VIDEO_TARGET_RATIO * decode.wallS ? 'met' : 'NOT met'}; CPU ratio ${(sum.cpuS / decode.cpuS).toFixed(2)}`);
   console.log(`  follow accuracy: median centre error ${(errors[errors.length >> 1] ?? NaN).toFixed(2)} px over ${errors.length} points`);
 }

@@ -210,6 +210,37 @@ export function resolveBall(ball: BallProps | string): BallProps {
   return props;
 }
 
+/** Relative slack at the ends of a rulebook range, so that a value written at the limit (0.45 kg) still matches. */
+const RANGE_SLACK = 1e-9;
+
+function inRange(v: number, r: NominalRange): boolean {
+  return v >= r.min * (1 - RANGE_SLACK) && v <= r.max * (1 + RANGE_SLACK);
+}
+
+/** Distance of a value from a range's nominal value, in half-widths of the range. */
+function offNominal(v: number, r: NominalRange): number {
+  const half = 0.5 * (r.max - r.min);
+  return half > 0 ? Math.abs(v - r.nominal) / half : 0;
+}
+
+/**
+ * The catalogue ball whose rulebook ranges hold both a mass and a diameter, for a ball given by its
+ * mass and size alone; where two balls' ranges overlap (a rugby ball's widest section and a size 3
+ * handball), the one whose nominal values lie nearer, counted in half-widths of each range.
+ * @param massKg mass m (kg); @param diameterM diameter D (m) of the reference area.
+ * @returns the ball, or null when no catalogue ball's ranges hold both.
+ */
+export function recogniseBall(massKg: number, diameterM: number): BallSpec | null {
+  let best: BallSpec | null = null, bestOff = Infinity;
+  for (const id of BALL_IDS) {
+    const spec = BALLS[id];
+    if (!inRange(massKg, spec.massKg) || !inRange(diameterM, spec.diameterM)) continue;
+    const off = Math.hypot(offNominal(massKg, spec.massKg), offNominal(diameterM, spec.diameterM));
+    if (off < bestOff) { best = spec; bestOff = off; }
+  }
+  return best;
+}
+
 /** Cross-section area A = πD²/4 (m²) of a ball of diameter D (m). */
 export function crossSectionArea(diameterM: number): number {
   return (Math.PI * diameterM * diameterM) / 4;

@@ -12,15 +12,15 @@
  * (1995) 773); and a scale check by a fit that lets gravity float.
  */
 import { reynoldsNumber, dragRegime, standardAir, SMOOTH_SPHERE_CRISIS_RE, type Air, type DragRegime } from './air';
-import { resolveBall, type BallProps } from './balls';
+import { recogniseBall, resolveBall, type BallProps, type BallSpec } from './balls';
 import { STANDARD_GRAVITY } from './constants';
 import { PhysicsError, isPhysicsError, type FlightWarning } from './errors';
 import {
-  acceleration, dragFactor, flightRhs, flyToGround, initialState, summarize, summaryOf, samplePath,
+  acceleration, dragFactor, flightRhs, flyToGround, initialState, summarize, summaryOf, samplePath, SIMULATE_DEFAULTS,
   type FlightAero, type FlightModel, type FlightSummary, type Launch, type MotionCoefficients, type SensitivityParam,
 } from './flight';
 import { integrate } from './integrator';
-import { spdInverse, polyFit } from './linalg';
+import { cholesky, choleskySolve, spdInverse, polyFit } from './linalg';
 import { gaussNewtonStep, levenbergMarquardt, type LmOptions, type LmProblem, type LmResult, type LmStopReason, type RobustLoss } from './lm';
 import {
   checkReleaseHeight, traceBackToRelease, RELEASE_MAX_BACK_S, RELEASE_WARN_FRAMES, RELEASE_WARN_S, type ReleasePoint, type ReleaseSpec,
@@ -50,7 +50,7 @@ export interface FitOptions {
   cdPrior?: 'auto' | 'always' | 'off';
   /** Accept a track that never rises (downward serve, spike): apex becomes the release. Default false. */
   allowDescending?: boolean;
-  /** Tolerance of the integration inside the fit (default 1e-9: m and m/s, relative). */
+  /** Tolerance of the integration inside the fit (default 1e-8: m and m/s, relative). */
   rtol?: number;
   /** Iteration limit per least-squares run (default 100). */
   maxIterations?: number;
@@ -72,7 +72,7 @@ export const FIT_DEFAULTS = {
   scaleCheck: true,
   cdPrior: 'auto' as 'auto' | 'always' | 'off',
   allowDescending: false,
-  rtol: 1e-9,
+  rtol: 1e-8,
   maxIterations: 100,
 } as const;
 
@@ -172,7 +172,11 @@ export interface FitResult {
   scaleCheck: ScaleCheck | null;
   /** BIC of both models (lower is better); `drag` is null when the lift term was decisive (Wald z² − ln m > 27) and the drag fit was skipped. */
   modelSelection: { criterion: 'BIC'; drag: number | null; dragLift: number; chosen: FlightModel } | null;
-  cdPrior: { mean: number; sd: number; used: boolean; source: string } | null;
+  /**
+   * The Gaussian prior on C_d (mean, σ) and whether it was used; `assumedBall` is the catalogue ball whose
+   * range it comes from when the ball was given by mass and diameter alone (null otherwise).
+   */
+  cdPrior: { mean: number; sd: number; used: boolean; source: string; assumedBall: { id: string; name: string } | null } | null;
   warnings: FlightWarning[];
   /** Everything the planner needs to fly this launch again. */
   setup: { launch: Launch; aero: FlightAero; ball: BallProps | null; air: Air; windSpeed: number; gravity: number };
@@ -525,7 +529,7 @@ function sandwich(a: Float64Array, m: Float64Array, np: number): Float64Array {
  * The point-to-point correlation φ of the track's errors, from the residuals' lag-1 autocorrelation
  * corrected for what the fit absorbs: residuals are ê = Mε with M = I − H, H = JAJᵀ, so under AR(1)
  * errors E[Σ êᵢêᵢ₊₁] / E[Σ êᵢ²] = S(MΣ_φM) / tr(MΣ_φM) (S the lag-1 sum within each coordinate);
- * φ solves this equal to the observed ratio (bisection on 0…0.98; the ratio grows with φ). The
+ * φ solves this equal to the observed ratio (regula falsi on 0…0.98; the ratio grows with φ). The
  * variance follows from E[Σ êᵢ²] = σ²(tr Σ_φ − tr(A·JᵀΣ_φJ)).
  * @param run the fit; @param n points; @param a (JᵀWJ + P)⁻¹ unscaled; @param np parameters.
  * @returns φ (0 when the residuals show no correlation beyond what the fit itself makes) and σ² (m²).
@@ -575,17 +579,23 @@ function residualCorrelation(run: Run, n: number, a: Float64Array, np: number): 
   };
   const at0 = expected(0);
   if (observed <= at0.ratio) return { phi: 0, s2: ee / Math.max(at0.trace, 1) };
-  let lo = 0, hi = 0.98;
-  if (expected(hi).ratio <= observed) lo = hi;
-  else {
-    // 12 halvings leave φ within 2.4e-4, far below what the track can tell.
-    for (let it = 0; it < 12; it++) {
-      const mid = 0.5 * (lo + hi);
-      if (expected(mid).ratio < observed) lo = mid; else hi = mid;
-    }
+  const PHI_MAX = 0.98;
+  const atMax = expected(PHI_MAX);
+  if (atMax.ratio <= observed) return { phi: PHI_MAX, s2: ee / Math.max(atMax.trace, 1) };
+  // The root of ratio(φ) − observed by the Illinois variant of regula falsi (Dowell & Jarratt, BIT 11
+  // (1971) 168): the ratio is smooth and nearly linear in φ, so a few evaluations bring φ within 1e-4,
+  // far below what the track can tell, where bisection took 12.
+  let lo = 0, fLo = at0.ratio - observed, hi = PHI_MAX, fHi = atMax.ratio - observed;
+  let phi = lo, at = at0, side = 0;
+  for (let it = 0; it < 30; it++) {
+    const c = hi - (fHi * (hi - lo)) / (fHi - fLo);
+    const ec = expected(c), fc = ec.ratio - observed;
+    const moved = Math.abs(c - phi);
+    phi = c; at = ec;
+    if (fc === 0 || moved < 1e-5 || hi - lo < 1e-4) break;
+    if (fc < 0) { lo = c; fLo = fc; if (side === -1) fHi *= 0.5; side = -1; } else { hi = c; fHi = fc; if (side === 1) fLo *= 0.5; side = 1; }
   }
-  const phi = lo;
-  return { phi, s2: ee / Math.max(expected(phi).trace, 1) };
+  return { phi, s2: ee / Math.max(at.trace, 1) };
 }
 
 function stdErr(cov: Float64Array | null, np: number, i: number): number | null {
@@ -630,8 +640,13 @@ interface FitStage {
   init: InitialGuess;
   /** Whether the loss is robust (anything but `linear`). */
   robust: boolean;
-  /** The ball's C_d range, or the generic one, and its midpoint: the start and the prior's mean. */
+  /**
+   * The ball's C_d range, else that of the catalogue ball its mass and diameter match, else the
+   * generic one, and its midpoint: the start and the prior's mean.
+   */
   cdRange: { min: number; max: number };
+  /** The catalogue ball recognised from a mass and diameter given without a C_d range. */
+  assumedBall: BallSpec | null;
   cd0: number;
   /** x₀ (m), y₀ (m), vₓ₀ (m/s), v_y₀ (m/s) of the smoothing polynomials. */
   launch0: number[];
@@ -742,11 +757,12 @@ function stageFit(track: Track, options: FitOptions): FitStage {
   if (!o.allowDescending && init.vy0 <= 0 && maxRise <= 3 * init.noise) {
     throw new PhysicsError('NEVER_RISES', 'The ball never rises: no traced point is above the first one. Start the trace at the release frame; for a ball struck downward (serve, spike) allow descending flights.');
   }
-  const cdRange = ball?.cdRange ?? GENERIC_CD_RANGE;
+  const assumedBall = ball && !ball.cdRange ? recogniseBall(ball.massKg, ball.diameterM) : null;
+  const cdRange = ball?.cdRange ?? (assumedBall ? { min: assumedBall.cd.min, max: assumedBall.cd.max } : GENERIC_CD_RANGE);
   return {
     o, prep, n, ball, air, kappa, base, init,
     robust: o.loss !== 'linear',
-    cdRange,
+    cdRange, assumedBall,
     cd0: 0.5 * (cdRange.min + cdRange.max),
     launch0: [init.x0, init.y0, init.vx0, init.vy0],
     warnings,
@@ -784,7 +800,7 @@ function runFit(s: FitStage, cfg: Config, start: number[], lmOptions: LmOptions 
 
 /**
  * A model fitted in two runs: plain least squares from the start, loosely converged (ftol 1e-4,
- * integration at rtol ≥ 1e-7, which saves a third of its steps), then the fit's own loss from
+ * integration at rtol ≥ 1e-6, which saves half of its steps; only its end point is kept), then the fit's own loss from
  * there with its scale adapted on the way.
  * Note: a robust loss far from the solution has almost no curvature along the residuals and sends
  * the first steps wild (measured: v 22 → 84 m/s, C_d → −0.48); and a launch-only first run is
@@ -793,8 +809,29 @@ function runFit(s: FitStage, cfg: Config, start: number[], lmOptions: LmOptions 
  * @returns the second run.
  */
 function stagedFit(s: FitStage, cfg: Config, start: number[]): Run {
-  const stage = runFit(s, cfg, start, { loss: 'linear', ftol: 1e-4 }, Math.max(s.o.rtol, 1e-7));
+  const stage = runFit(s, cfg, start, { loss: 'linear', ftol: 1e-4 }, Math.max(s.o.rtol, 1e-6));
   return runFit(s, cfg, Array.from(stage.lm.p), s.robust ? { adaptScale: s.adaptScale } : {});
+}
+
+/**
+ * Start of the drag fit from the drag-lift fit: the minimum of the drag-lift fit's quadratic model
+ * of the cost with C_L held at 0, p = p̂ + H_pp⁻¹H_pc·Ĉ_L (H its JᵀWJ, p the other parameters):
+ * the drag fit then starts next to its own minimum instead of where the lift term had moved it.
+ * @param dl the drag-lift run (parameters x₀, y₀, vₓ₀, v_y₀, C_d, C_L).
+ * @returns x₀, y₀ (m), vₓ₀, v_y₀ (m/s), C_d; the drag-lift values themselves when H_pp is singular.
+ */
+function dragStartFrom(dl: Run): number[] {
+  const p = Array.from(dl.lm.p).slice(0, 5);
+  const np = dl.names.length, m = 5, iCl = dl.names.indexOf('cl');
+  const h = dl.lm.jtwj;
+  const hpp = new Float64Array(m * m), rhs = new Float64Array(m);
+  for (let a = 0; a < m; a++) {
+    for (let b = 0; b < m; b++) hpp[a * m + b] = h[a * np + b];
+    rhs[a] = h[a * np + iCl] * dl.lm.p[iCl];
+  }
+  if (!cholesky(hpp, m)) return p;
+  choleskySolve(hpp, m, rhs);
+  return p.map((v, a) => v + rhs[a]);
 }
 
 /**
@@ -826,7 +863,7 @@ function chooseModel(s: FitStage): { chosen: Run; selection: FitResult['modelSel
   }
   let drag: Run;
   try {
-    drag = runFit(s, plainConfig('drag'), Array.from(dl.lm.p).slice(0, 5), { adaptScale: robust ? s.adaptScale : undefined });
+    drag = runFit(s, plainConfig('drag'), dragStartFrom(dl), { adaptScale: robust ? s.adaptScale : undefined });
   } catch (e) {
     // The drag-lift fit wandered somewhere the drag model cannot start from: start afresh.
     if (!isPhysicsError(e)) throw e;
@@ -846,10 +883,14 @@ function chooseModel(s: FitStage): { chosen: Run; selection: FitResult['modelSel
  */
 function applyCdPrior(s: FitStage, chosen: Run): { chosen: Run; cdPrior: FitResult['cdPrior'] } {
   if (chosen.config.model !== 'drag' && chosen.config.model !== 'drag-lift') return { chosen, cdPrior: null };
-  const { cdRange, ball, n } = s;
+  const { cdRange, ball, n, assumedBall } = s;
   const mean = s.cd0, sd = (cdRange.max - cdRange.min) / 4;
-  const source = ball?.cdRange ? `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}` : `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
-  const cdPrior = { mean, sd, used: false, source };
+  let source: string;
+  if (ball?.cdRange) source = `the typical range ${cdRange.min}–${cdRange.max} for ${ball.name ?? 'this ball'}`;
+  else if (ball && assumedBall) {
+    source = `the typical range ${cdRange.min}–${cdRange.max} for ${assumedBall.name} (the ball was assumed to be one: its ${fmtNum(ball.massKg, 4)} kg and ${fmtNum(ball.diameterM, 4)} m lie within that ball's rulebook ranges; pick the ball, or give its C_d range, if it is another)`;
+  } else source = `a generic ball range ${cdRange.min}–${cdRange.max} (the ball has no C_d range)`;
+  const cdPrior = { mean, sd, used: false, source, assumedBall: assumedBall ? { id: assumedBall.id, name: assumedBall.name } : null };
   if (s.o.cdPrior === 'off') return { chosen, cdPrior };
   const { cov } = covarianceOf(chosen, n);
   const iCd = chosen.names.indexOf('cd');
@@ -925,6 +966,52 @@ function checkRelease(s: FitStage, chosen: Run, release: ReleasePoint): void {
 }
 
 /**
+ * The chosen run's problem with gravity free, at the chosen run's parameters only: its residuals and
+ * Jacobian there are the run's own, so only the gravity column ∂(x, y)/∂g is integrated (the state
+ * and one variational column instead of all of them; the same steps, since only the state controls
+ * them). Without air the column is (0, −t²/2).
+ * @param s the fit's shared state; @param chosen the kept run; @param gCfg its configuration with gravity free.
+ * @returns a problem that answers for the chosen parameters with gravity appended (m/s²), and fails elsewhere.
+ */
+function withGravityColumn(s: FitStage, chosen: Run, gCfg: Config): LmProblem {
+  const { prep, n } = s;
+  const np = chosen.names.length, npG = np + 1;
+  const nRes = chosen.lm.r.length;
+  const col = new Float64Array(2 * n);
+  const model = chosen.config.model;
+  let ok = true;
+  if (model === 'vacuum') {
+    for (let k = 0; k < n; k++) col[2 * k + 1] = -0.5 * prep.tau[k] * prep.tau[k];
+  } else {
+    const p = chosen.lm.p;
+    const out = new Float64Array(n * 8);
+    try {
+      integrate(flightRhs(coefficientsOf(s, chosen), s.kappa, ['g']), 0, initialState(p[0], p[1], p[2], p[3], ['g']), {
+        tEnd: prep.tau[n - 1], rtol: s.o.rtol, atol: s.o.rtol, errorDim: 4, outputTimes: prep.tau, output: out, maxSteps: 5000,
+      });
+      for (let k = 0; k < n; k++) { col[2 * k] = out[8 * k + 4]; col[2 * k + 1] = out[8 * k + 5]; }
+    } catch (e) {
+      if (!isPhysicsError(e)) throw e;
+      ok = false;
+    }
+  }
+  return {
+    nParams: npG, nResiduals: nRes, robustResiduals: 2 * n, groupSize: 2,
+    evaluate(_p, r, J) {
+      if (!ok || gCfg.model !== model) return false;
+      r.set(chosen.lm.r);
+      if (J) {
+        for (let i = 0; i < nRes; i++) {
+          for (let a = 0; a < np; a++) J[i * npG + a] = chosen.lm.J[i * np + a];
+          J[i * npG + np] = i < 2 * n ? col[i] : 0;
+        }
+      }
+      return true;
+    },
+  };
+}
+
+/**
  * Scale check: the chosen model with gravity free, started from the fit, gives the factor
  * g_fitted / g and its standard error. Near a consistent scale one Gauss–Newton step settles it
  * (g enters almost linearly over a few per cent), and so it does when gravity is too poorly
@@ -945,7 +1032,7 @@ function checkScale(s: FitStage, chosen: Run): ScaleCheck | null {
   const gCfg: Config = { ...chosen.config, freeG: true };
   const iG = paramNames(gCfg).indexOf('g');
   const start = [...Array.from(p), o.gravity];
-  const step = gaussNewtonStep(makeProblem(s.prep, gCfg, s.base, s.kappa, o.rtol), start, { loss: o.loss, lossScale: s.lossScale });
+  const step = gaussNewtonStep(withGravityColumn(s, chosen, gCfg), start, { loss: o.loss, lossScale: s.lossScale });
   s.evaluations++;
   let factor = NaN, gErr: number | null = null;
   if (step) {
@@ -1028,21 +1115,24 @@ function estimateUncertainty(s: FitStage, chosen: Run, release: ReleasePoint): F
   const beta = idx('beta') >= 0 ? p[idx('beta')] : null;
   const coeffs: MotionCoefficients = { model, k: kappa * (cd ?? 0), kl: kappa * (cl ?? 0), beta: beta ?? 0, g: o.gravity, wind: o.windSpeed };
   const sens = sensList(names);
+  // The flight to the ground at the simulator's tolerance (or the fit's, when tighter), so that the
+  // reported flight is the one the planner and the charts fly again from the same launch.
+  const derivedRtol = Math.min(o.rtol, SIMULATE_DEFAULTS.rtol);
   let derived: ReturnType<typeof derivedWithErrors>, std: ReturnType<typeof derivedWithErrors>;
   const stdAir = standardAir();
   const stdKappa = ball ? dragFactor(ball, stdAir) : 0;
   try {
-    derived = derivedWithErrors(coeffs, kappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
+    derived = derivedWithErrors(coeffs, kappa, x0, y0, vx0, vy0, sens, cov, np, derivedRtol);
     const stdBeta = beta === null ? 0 : (beta * stdAir.viscosityPaS) / air.viscosityPaS;
     const stdCoeffs: MotionCoefficients = { model, k: stdKappa * (cd ?? 0), kl: stdKappa * (cl ?? 0), beta: stdBeta, g: STANDARD_GRAVITY, wind: 0 };
-    std = derivedWithErrors(stdCoeffs, stdKappa, x0, y0, vx0, vy0, sens, cov, np, o.rtol);
+    std = derivedWithErrors(stdCoeffs, stdKappa, x0, y0, vx0, vy0, sens, cov, np, derivedRtol);
   } catch (e) {
     if (!isPhysicsError(e) || (e.code !== 'INTEGRATION_FAILED' && e.code !== 'NO_LANDING')) throw e;
     const what = [cd !== null ? `C_d ${fmtNum(cd, 2)}` : '', cl !== null ? `C_L ${fmtNum(cl, 2)}` : '', beta !== null ? `drag rate ${fmtNum(beta, 2)}/s` : ''].filter(Boolean).join(', ');
     throw new PhysicsError('FIT_FAILED', `The fitted ${model} flight (${what || 'no air'}) does not come down to the ground: the points may not be one ball's flight, or the scale or timing is far off. Check the trace and the calibration, or try another model.`);
   }
   const flight = derived.summary;
-  const vac = summarize({ model: 'vacuum', k: 0, kl: 0, beta: 0, g: o.gravity, wind: 0 }, 0, x0, y0, vx0, vy0, o.rtol);
+  const vac = summarize({ model: 'vacuum', k: 0, kl: 0, beta: 0, g: o.gravity, wind: 0 }, 0, x0, y0, vx0, vy0, derivedRtol);
 
   const speed = Math.hypot(vx0, vy0);
   const gradSpeed = new Float64Array(np), gradAngle = new Float64Array(np);
@@ -1064,7 +1154,7 @@ function estimateUncertainty(s: FitStage, chosen: Run, release: ReleasePoint): F
   if (ball) {
     reynolds = reynoldsNumber(vAir, ball.diameterM, air);
     regime = dragRegime(reynolds, ball.crisisReynolds).regime;
-    reynoldsRange = reynoldsOverFlight(coeffs, kappa, release, flight.flightTime, ball.diameterM, air, o.rtol);
+    reynoldsRange = reynoldsOverFlight(coeffs, kappa, release, flight.flightTime, ball.diameterM, air, derivedRtol);
     // The crisis matters when the flight's own Reynolds numbers reach into the ball's band, not when launch is merely near it.
     const [lo, hi] = ball.crisisReynolds ?? SMOOTH_SPHERE_CRISIS_RE;
     nearDragCrisis = reynoldsRange.max >= lo && reynoldsRange.min <= hi;

@@ -230,7 +230,7 @@ const LANDING_EVENT: OdeEvent = { name: 'landing', g: (_t, y) => y[1], direction
 const APEX_AND_LANDING = [APEX_EVENT, LANDING_EVENT];
 const LANDING_ONLY = [LANDING_EVENT];
 /** No real throw or kick stays up this long; a flight that does has parameters far off. */
-const MAX_FLIGHT_TIME_S = 120;
+export const MAX_FLIGHT_TIME_S = 120;
 
 /** Raw result of a flight from an initial state, with event states (including variational columns). */
 export interface RawFlight {

@@ -15,7 +15,7 @@ export {
   type Air, type Conditions, type DragRegime,
 } from './air';
 export {
-  BALLS, BALL_IDS, ballProps, resolveBall, crossSectionArea,
+  BALLS, BALL_IDS, ballProps, resolveBall, recogniseBall, crossSectionArea,
   type BallSpec, type BallProps, type NominalRange, type SourceNote,
 } from './balls';
 export {

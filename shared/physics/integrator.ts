@@ -176,10 +176,12 @@ function run(f: OdeRhs, t0: number, y0: ArrayLike<number>, options: IntegrateOpt
   let tOldDense = t;
   let hDense = 0;
 
-  const interpolate = (tt: number, out: Float64Array): void => {
+  const interpolate = (tt: number, out: Float64Array): void => interpolateAt(tt, out, 0);
+  // The dense output at tt into out[at…at+n): outputs go straight into their row, without a copy.
+  const interpolateAt = (tt: number, out: Float64Array, at: number): void => {
     const s = (tt - tOldDense) / hDense;
     const s1 = 1 - s;
-    for (let i = 0; i < n; i++) out[i] = r1[i] + s * (r2[i] + s1 * (r3[i] + s * (r4[i] + s1 * r5[i])));
+    for (let i = 0; i < n; i++) out[at + i] = r1[i] + s * (r2[i] + s1 * (r3[i] + s * (r4[i] + s1 * r5[i])));
   };
 
   for (;;) {
@@ -270,8 +272,7 @@ function run(f: OdeRhs, t0: number, y0: ArrayLike<number>, options: IntegrateOpt
         for (let i = hits.length - 1; i >= 0; i--) if (hits[i].t > stopT) hits.splice(i, 1);
         hits.sort((a, b) => a.t - b.t);
         while (outTimes && outIdx < nOut && outTimes[outIdx] <= stopT) {
-          interpolate(outTimes[outIdx], yTmp);
-          output!.set(yTmp, outIdx * n);
+          interpolateAt(outTimes[outIdx], output!, outIdx * n);
           outIdx++;
         }
         interpolate(stopT, yTmp);
@@ -283,8 +284,7 @@ function run(f: OdeRhs, t0: number, y0: ArrayLike<number>, options: IntegrateOpt
       }
 
       while (outTimes && outIdx < nOut && outTimes[outIdx] <= tNew) {
-        interpolate(outTimes[outIdx], yTmp);
-        output!.set(yTmp, outIdx * n);
+        interpolateAt(outTimes[outIdx], output!, outIdx * n);
         outIdx++;
       }
       if (options.onStep) options.onStep(t, tNew, yNew, interpolate);

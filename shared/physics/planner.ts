@@ -10,8 +10,9 @@ import { STANDARD_GRAVITY } from './constants';
 import { PhysicsError } from './errors';
 import {
   flyToGround, initialState, motionCoefficients, simulateFlight, summaryOf,
-  type FlightAero, type FlightSummary, type Launch, type MotionCoefficients,
+  type FlightAero, type FlightSummary, type Launch, type MotionCoefficients, MAX_FLIGHT_TIME_S,
 } from './flight';
+import { flyKernel } from './kernel';
 
 /**
  * Integration tolerance of the planner (relative, and absolute in m and m/s). Measured carry error
@@ -145,12 +146,18 @@ export function plannerGrid(setup: FlightSetup, speed: GridAxis, angleDeg: GridA
     const th = (a * Math.PI) / 180;
     const cos = Math.cos(th), sin = Math.sin(th);
     const rc: number[] = [], rt: number[] = [], ra: number[] = [];
+    // Each flight starts with the step its slower neighbour settled on (same tolerance, fewer steps).
+    let hStart = 0;
     for (const v of speeds) {
       if (h === 0 && (v === 0 || a <= 0)) { rc.push(0); rt.push(0); ra.push(0); continue; }
-      const raw = flyToGround(c, kappa, initialState(0, h, v * cos, v * sin), [], PLANNER_RTOL, true);
-      rc.push(raw.landing.y[0]);
-      rt.push(raw.landing.t);
-      ra.push(raw.apex ? raw.apex.y[1] : h);
+      if (c.model === 'vacuum') {
+        const raw = flyToGround(c, kappa, initialState(0, h, v * cos, v * sin), [], PLANNER_RTOL, true);
+        rc.push(raw.landing.y[0]); rt.push(raw.landing.t); ra.push(raw.apex ? raw.apex.y[1] : h);
+        continue;
+      }
+      const f = flyKernel(c, 0, h, v * cos, v * sin, PLANNER_RTOL, true, MAX_FLIGHT_TIME_S, hStart);
+      hStart = f.hSettled;
+      rc.push(f.landing.x); rt.push(f.landing.t); ra.push(f.apex ? f.apex.y : h);
     }
     carry.push(rc); flightTime.push(rt); apexHeight.push(ra);
   }

@@ -63,6 +63,19 @@ describe('fit command', () => {
     expect(Math.abs(line.cd - 0.26)).toBeLessThan(0.005);
   });
 
+  it('names the catalogue ball it assumed for a file that gives only mass and diameter', async () => {
+    // The first 0.25 s of the throw-in cannot determine C_d alone; 0.43 kg and 0.22 m lie within IFAB Law 2's ranges (from memory).
+    const lines = readFileSync(file('throw-in-short.csv'), 'utf8').replace('# ball: football-5', '# mass_kg: 0.43\n# diameter_m: 0.22').split('\n');
+    const text = lines.slice(0, lines.findIndex((l) => l.startsWith('t,')) + 16).join('\n');
+    const out: string[] = [];
+    const status = await runFitCli(['--model', 'drag', 'throw-in.csv'], { out: (l) => out.push(l), err: () => {}, readFile: async () => text });
+    expect(status).toBe(0);
+    const line = JSON.parse(out[0]);
+    expect(line.cdPriorUsed).toBe(true);
+    const prior = (line.warnings as { code: string; message: string }[]).find((w) => w.code === 'CD_PRIOR_USED')!;
+    expect(prior.message).toMatch(/0\.2–0\.3 for Association football, size 5 \(the ball was assumed to be one/);
+  });
+
   it('traces a late-starting track back to the release height given on the command line', async () => {
     const lines = readFileSync(file('punt-evening.csv'), 'utf8').split('\n');
     const header = lines.findIndex((l) => l.startsWith('t,'));

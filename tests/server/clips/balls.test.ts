@@ -152,6 +152,26 @@ describe('club balls', () => {
     expect(flight.latestFit.warnings.map((w: { code: string }) => w.code)).toContain('CD_OUTSIDE_RANGE');
   });
 
+  it('assumes the catalogue ball a club ball’s mass and diameter match when the track cannot determine C_d, and says so', async () => {
+    // 0.43 kg and 0.22 m lie within IFAB Law 2's ranges (410–450 g, 68–70 cm circumference, from memory).
+    const own = await fx.coach.post(clubPath(fx, '/balls'), { name: 'Fennick Vale match ball', massKg: 0.43, diameterM: 0.22 });
+    expect(own.status).toBe(201);
+    const created = await fx.coach.post(clubPath(fx, `/clips/${clipId}/flights`), { athleteId: fx.otherAthleteProfileId, action: 'long_throw', ballId: own.body.data.ballId });
+    const flightId = created.body.data.id as number;
+    // A quarter of a second of a noisy kick: far too little to measure C_d.
+    const track = generateTrack({ launch: { speed: 20, angleDeg: 35, height: 0.2 }, ball: 'football-5', air: standardAir(), aero: { model: 'drag', cd: 0.25 }, fps: 120, endTime: 0.25, noise: 0.03, seed: 5 });
+    const csv = `# metres\nt,x,y\n${track.t.map((t, i) => `${t},${track.x[i]},${track.y[i]}`).join('\n')}\n`;
+    expect((await fx.coach.post(clubPath(fx, `/flights/${flightId}/track/import`), { csv })).status).toBe(200);
+    expect((await fx.coach.post(clubPath(fx, `/flights/${flightId}/fit`), { model: 'drag' })).status).toBe(202);
+    await testWorker().drain();
+    const fit = await Fit.findOne({ where: { flightId }, order: [['id', 'DESC']] });
+    const result = fit!.result as { cd: number; cdPrior: { used: boolean; mean: number; assumedBall: { id: string } | null } };
+    expect(result.cdPrior).toMatchObject({ used: true, mean: 0.25, assumedBall: { id: 'football-5' } });
+    const flight = (await fx.coach.get(clubPath(fx, `/flights/${flightId}`))).body.data;
+    const prior = (flight.latestFit.warnings as { code: string; message: string }[]).find((w) => w.code === 'CD_PRIOR_USED');
+    expect(prior?.message).toMatch(/0\.2–0\.3 for Association football, size 5 \(the ball was assumed to be one: its 0\.43 kg and 0\.22 m/);
+  });
+
   it('puts a flight in needs attention when the calibration’s ball-size cross-check failed', async () => {
     // The ball drawn at twice its size: the scale or the ball picked is off.
     const bad = await fx.coach.put(clubPath(fx, `/clips/${clipId}/calibration`), { ...calibration, ball: { ballId: 'football-5', diameterPx: 2 * (0.69 / Math.PI) * PX_PER_M } });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { BALLS, BALL_IDS, ballProps, isPhysicsError, resolveBall } from '../../../shared/physics/index';
+import { BALLS, BALL_IDS, ballProps, isPhysicsError, recogniseBall, resolveBall } from '../../../shared/physics/index';
 
 // Rulebook ranges as listed in the project's REFERENCES.md (from memory where not confirmed there);
 // tolerance 0.5 % on masses and sizes.
@@ -81,5 +81,29 @@ describe('ballProps and resolveBall', () => {
 
   it('refuses a diameter given in centimetres with a hint to use metres', () => {
     expect(() => resolveBall({ massKg: 0.43, diameterM: 22 })).toThrowError(/give it in metres/);
+  });
+});
+
+describe('recogniseBall', () => {
+  it.each(BALL_IDS)('recognises %s at its nominal mass and diameter', (id) => {
+    expect(recogniseBall(BALLS[id].massKg.nominal, BALLS[id].diameterM.nominal)?.id).toBe(id);
+  });
+
+  it('recognises a ball at the very ends of its rulebook ranges', () => {
+    // IFAB Law 2 (from memory): 410–450 g, 68–70 cm circumference.
+    expect(recogniseBall(0.41, 0.68 / Math.PI)?.id).toBe('football-5');
+    expect(recogniseBall(0.45, 0.7 / Math.PI)?.id).toBe('football-5');
+  });
+
+  it('recognises nothing when the mass or the diameter lies outside every ball’s ranges', () => {
+    expect(recogniseBall(0.3, 0.22)).toBeNull(); // a football's size, a volleyball's mass
+    expect(recogniseBall(0.43, 0.3)).toBeNull();
+    expect(recogniseBall(1, 0.15)).toBeNull();
+  });
+
+  it('takes the ball whose nominal values lie nearer where two balls’ ranges overlap', () => {
+    // World Rugby Law 2's widest section and IHF rule 3's size 3 overlap near 0.44 kg and 0.19 m (both from memory).
+    expect(recogniseBall(0.44, 0.194)?.id).toBe('rugby');
+    expect(recogniseBall(0.46, 0.186)?.id).toBe('handball-3');
   });
 });

@@ -198,6 +198,35 @@ describe('fitFlight prior and scale check', () => {
     expect(f.cdError!).toBeLessThanOrEqual(0.025 + 1e-9);
   });
 
+  it('recognises a ball given by mass and diameter alone and takes its catalogue C_d range as the prior, naming it', () => {
+    // 0.43 kg and 0.22 m lie within IFAB Law 2 (410–450 g, 68–70 cm circumference, from memory); football C_d 0.2–0.3
+    // above the crisis (Asai et al., Sports Engineering 10 (2007) 101, from memory).
+    const truth = generateTrack({ ...punt, endTime: 0.35, noise: 0.04, fps: 30, seed: 13 });
+    const f = fitFlight(truth, { ball: { massKg: 0.43, diameterM: 0.22, name: 'the ball' }, air, model: 'drag' });
+    expect(f.cdPrior).toMatchObject({ mean: 0.25, used: true, assumedBall: { id: 'football-5', name: 'Association football, size 5' } });
+    expect(f.cdPrior!.sd).toBeCloseTo(0.025, 12);
+    const warning = f.warnings.find((w) => w.code === 'CD_PRIOR_USED')!.message;
+    expect(warning).toMatch(/0\.2–0\.3 for Association football, size 5/);
+    expect(warning).toMatch(/assumed to be one: its 0\.43 kg and 0\.22 m lie within that ball's rulebook ranges/);
+    // The same prior as the catalogue ball's own: the same C_d to the fit's own precision.
+    const named = fitFlight(truth, { ball: 'football-5', air, model: 'drag' });
+    expect(Math.abs(f.cd! - named.cd!)).toBeLessThan(0.1 * f.cdError!);
+  });
+
+  it('keeps the generic prior for a ball whose mass and diameter match no catalogue ball', () => {
+    const truth = generateTrack({ ...punt, endTime: 0.35, noise: 0.04, fps: 30, seed: 13 });
+    const f = fitFlight(truth, { ball: { massKg: 0.3, diameterM: 0.22, name: 'the ball' }, air, model: 'drag' });
+    expect(f.cdPrior!.assumedBall).toBeNull();
+    expect(f.cdPrior!.source).toMatch(/generic ball range 0\.1–0\.6/);
+  });
+
+  it('prefers a ball’s own C_d range to a catalogue ball its mass and diameter match', () => {
+    const truth = generateTrack({ ...punt, endTime: 0.35, noise: 0.04, fps: 30, seed: 13 });
+    const f = fitFlight(truth, { ball: { massKg: 0.43, diameterM: 0.22, cdRange: { min: 0.3, max: 0.4 }, name: 'Club size 5' }, air, model: 'drag' });
+    expect(f.cdPrior).toMatchObject({ mean: 0.35, assumedBall: null });
+    expect(f.cdPrior!.source).toMatch(/0\.3–0\.4 for Club size 5/);
+  });
+
   it('does not use the prior when the track determines C_d', () => {
     const { fit: f } = fit(punt, { model: 'drag' });
     expect(f.cdPrior!.used).toBe(false);

@@ -43,6 +43,29 @@ describe('flyKernel', () => {
     expect(Math.abs(at[0] - f.landing.x)).toBeLessThan(1e-8 * Math.abs(f.landing.x));
   });
 
+  it('lands as accurately in fewer steps when it starts with the step a slightly slower flight settled on', () => {
+    // Reference: odex v2.0.4 at 1e-13 (as above); tolerance: the kernel's own 1e-8 carried over a 3 s flight.
+    const [, c, s0] = cases[0];
+    const slower = flyKernel(c, s0[0], s0[1], 0.98 * s0[2], 0.98 * s0[3], 1e-8, true, 120);
+    const cold = flyKernel(c, s0[0], s0[1], s0[2], s0[3], 1e-8, true, 120);
+    const warm = flyKernel(c, s0[0], s0[1], s0[2], s0[3], 1e-8, true, 120, slower.hSettled);
+    expect(warm.steps).toBeLessThan(cold.steps);
+    const [at] = odexStates(c, s0, [warm.landing.t], 1e-13);
+    expect(Math.abs(at[1])).toBeLessThan(1e-6);
+    expect(Math.abs(warm.landing.x - cold.landing.x)).toBeLessThan(1e-6);
+    expect(Math.abs(warm.landing.t - cold.landing.t)).toBeLessThan(1e-7);
+  });
+
+  it('still finds the landing of a ball launched from the ground when the borrowed first step is longer than the flight', () => {
+    // A grazing kick along the ground: 14 m/s at 1.33°, in the air for about 0.07 s.
+    const [, c] = cases[0];
+    const th = (1.3333 * Math.PI) / 180;
+    const cold = flyKernel(c, 0, 0, 14 * Math.cos(th), 14 * Math.sin(th), 1e-8, true, 120);
+    const warm = flyKernel(c, 0, 0, 14 * Math.cos(th), 14 * Math.sin(th), 1e-8, true, 120, 1.1 * cold.landing.t);
+    expect(Math.abs(warm.landing.t - cold.landing.t)).toBeLessThan(1e-7);
+    expect(Math.abs(warm.landing.x - cold.landing.x)).toBeLessThan(1e-6);
+  });
+
   it('reports no apex for a ball launched downward', () => {
     const f = flyKernel(cases[0][1], 0, 2.5, 20, -3, 1e-8, true, 120);
     expect(f.apex).toBeNull();
