@@ -11,10 +11,12 @@
  * The client is built into `dist-bench` first (LH_CLIENT_DIR names another folder; LH_BUILD=0 keeps what is
  * there). The demo club lives in its own database (`arcwright_bench_lighthouse`, LH_DB_NAME), seeded once and
  * reused; its clips are kept in `.data/bench-lighthouse-storage`.
+ * LH_REPORT_DIR=<folder> keeps every run's full Lighthouse report there (`<page>-<run>.json`, open it in a
+ * Lighthouse report viewer or read its audits) to see where the time goes.
  * Nothing asserts a score: the figures depend on the machine (and on what else runs on it).
  */
 import { execFileSync, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync } from 'node:fs';
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
 import { join, resolve } from 'node:path';
 import * as chromeLauncher from 'chrome-launcher';
@@ -26,6 +28,7 @@ const CLIENT_DIR = resolve(ROOT, process.env.LH_CLIENT_DIR ?? 'dist-bench');
 const STORAGE_DIR = join(ROOT, '.data', 'bench-lighthouse-storage');
 const RUNS = Math.max(1, Number(process.env.LH_RUNS ?? 3));
 const CHROME_PATH = process.env.CHROME_PATH ?? '/usr/bin/chromium';
+const REPORT_DIR = process.env.LH_REPORT_DIR ? resolve(process.env.LH_REPORT_DIR) : null;
 
 /** The demo club's coach (server/seeders/0001-demo-club.ts). */
 const COACH = { email: 'coach@fennickvale.example', password: 'arcwright-demo' };
@@ -78,7 +81,7 @@ async function fittedFlight(base: string, cookie: string, log: () => string): Pr
 }
 
 /** One Lighthouse run of `url` in a fresh Chromium (no cache, no storage), mobile settings. */
-async function measure(url: string, cookie: string | null): Promise<Run> {
+async function measure(url: string, cookie: string | null, reportName: string): Promise<Run> {
   const chrome = await chromeLauncher.launch({
     chromePath: CHROME_PATH,
     chromeFlags: ['--headless=new', '--no-sandbox', '--disable-gpu', '--disable-dev-shm-usage', '--no-first-run'],
@@ -94,6 +97,10 @@ async function measure(url: string, cookie: string | null): Promise<Run> {
     if (!result) throw new Error(`Lighthouse gave no result for ${url}`);
     const { lhr } = result;
     if (lhr.runtimeError) throw new Error(`Lighthouse could not load ${url}: ${lhr.runtimeError.message}`);
+    if (REPORT_DIR) {
+      mkdirSync(REPORT_DIR, { recursive: true });
+      writeFileSync(join(REPORT_DIR, `${reportName}.json`), JSON.stringify(lhr, null, 1));
+    }
     const numeric = (id: string) => lhr.audits[id]?.numericValue ?? NaN;
     const items = (lhr.audits['resource-summary']?.details as { items?: { resourceType: string; transferSize: number }[] } | undefined)?.items ?? [];
     const size = (type: string) => (items.find((i) => i.resourceType === type)?.transferSize ?? 0) / 1024;
@@ -162,7 +169,7 @@ export async function run(): Promise<void> {
     const failures: string[] = [];
     for (const page of pages) {
       const runs: Run[] = [];
-      for (let i = 0; i < RUNS; i++) runs.push(await measure(`${base}${page.path}`, page.signedIn ? cookie : null));
+      for (let i = 0; i < RUNS; i++) runs.push(await measure(`${base}${page.path}`, page.signedIn ? cookie : null, `${page.name.replace(/\W+/g, '-')}-${i + 1}`));
       const m = median(runs);
       rows.push([
         page.name,
