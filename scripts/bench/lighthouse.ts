@@ -169,7 +169,16 @@ export async function run(): Promise<void> {
     const failures: string[] = [];
     for (const page of pages) {
       const runs: Run[] = [];
-      for (let i = 0; i < RUNS; i++) runs.push(await measure(`${base}${page.path}`, page.signedIn ? cookie : null, `${page.name.replace(/\W+/g, '-')}-${i + 1}`));
+      for (let i = 0; i < RUNS; i++) {
+        const measureOnce = () => measure(`${base}${page.path}`, page.signedIn ? cookie : null, `${page.name.replace(/\W+/g, '-')}-${i + 1}`);
+        // On a busy machine Lighthouse now and then gives up on a page (a protocol timeout): one more try.
+        runs.push(
+          await measureOnce().catch((err: unknown) => {
+            console.log(`${page.name}, run ${i + 1}: ${err instanceof Error ? err.message : String(err)}; trying again`);
+            return measureOnce();
+          }),
+        );
+      }
       const m = median(runs);
       rows.push([
         page.name,
