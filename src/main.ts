@@ -5,10 +5,12 @@ import ToastService from 'primevue/toastservice';
 import ConfirmationService from 'primevue/confirmationservice';
 import Tooltip from 'primevue/tooltip';
 
-// The typeface ships with the app (bundled by Vite): no font is fetched from another origin.
-import '@fontsource/source-sans-3/400.css';
-import '@fontsource/source-sans-3/600.css';
-import '@fontsource/source-sans-3/700.css';
+// The typeface ships with the app (bundled by Vite): no font is fetched from another origin. Only its Latin
+// subset is bundled (the screens' text is English; other glyphs fall back to the system's sans-serif), and
+// index.html preloads the weights the first screen draws (vite.config.ts).
+import '@fontsource/source-sans-3/latin-400.css';
+import '@fontsource/source-sans-3/latin-600.css';
+import '@fontsource/source-sans-3/latin-700.css';
 import 'primeicons/primeicons.css';
 import './assets/main.css';
 

@@ -10,19 +10,12 @@
  * machine runs than throughput and latency do (the database's share is not in it).
  * Nothing asserts a time: the figures depend on the machine (and on what else runs on it).
  */
-import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
-import { once } from 'node:events';
-import { createServer, type AddressInfo } from 'node:net';
 import { availableParallelism, loadavg } from 'node:os';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import autocannon from 'autocannon';
-import mariadb from 'mariadb';
 import { mulberry32 } from '../../shared/physics';
+import { ensureBenchDatabase, freePort, passwordSignIn, printTable, productionEnv, startProductionApp } from './support/production-app';
 
-const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
-const HOST = '127.0.0.1';
 const DB_NAME = process.env.BENCH_DB_NAME ?? 'arcwright_bench_api';
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 20);
 const DURATION_S = Number(process.env.BENCH_SECONDS ?? 8);
@@ -49,15 +42,6 @@ const PASSWORD = 'bench-password-1';
 
 const P95_TARGET_MS = 50;
 
-/** A port the system has free on HOST just now. */
-async function freePort(): Promise<number> {
-  const probe = createServer().listen(0, HOST);
-  await once(probe, 'listening');
-  const { port } = probe.address() as AddressInfo;
-  await new Promise((done) => probe.close(done));
-  return port;
-}
-
 type Sql = (sql: string, values?: unknown[]) => Promise<unknown>;
 
 /** Inserts rows in chunks of multi-row INSERTs. */
@@ -66,16 +50,6 @@ async function insertRows(sql: Sql, table: string, columns: string[], rows: unkn
   for (let i = 0; i < rows.length; i += chunk) {
     const part = rows.slice(i, i + chunk);
     await sql(`INSERT INTO ${table} (${columns.join(', ')}) VALUES ${part.map(() => tuple).join(', ')}`, part.flat());
-  }
-}
-
-async function ensureDatabase(settings: { host: string; port: number; user: string; password: string }): Promise<void> {
-  if (!/^[A-Za-z0-9_]+$/.test(DB_NAME)) throw new Error(`BENCH_DB_NAME "${DB_NAME}": letters, digits and _ only.`);
-  const conn = await mariadb.createConnection({ ...settings, connectTimeout: 5000 });
-  try {
-    await conn.query(`CREATE DATABASE IF NOT EXISTS \`${DB_NAME}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-  } finally {
-    await conn.end();
   }
 }
 
@@ -190,37 +164,6 @@ async function seedClub(): Promise<{ clubId: number; athleteId: number; flightId
   return { ...seeded, seconds: (Date.now() - started) / 1000, reused: false };
 }
 
-async function waitForHealth(base: string, child: ChildProcess, log: () => string): Promise<void> {
-  const deadline = Date.now() + 60_000;
-  while (Date.now() < deadline) {
-    if (child.exitCode !== null) throw new Error(`The app stopped (exit ${child.exitCode}):\n${log()}`);
-    try {
-      if ((await fetch(`${base}/api/v1/health`)).ok) return;
-    } catch {
-      // not listening yet
-    }
-    await new Promise((r) => setTimeout(r, 250));
-  }
-  throw new Error(`The app did not answer /api/v1/health within a minute:\n${log()}`);
-}
-
-function cookieOf(response: Response): string {
-  return response.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
-}
-
-/** Signs in the bench coach and answers the session cookie. */
-async function signIn(base: string): Promise<string> {
-  const csrf = await fetch(`${base}/api/v1/auth/csrf`);
-  const token = ((await csrf.json()) as { data: { csrfToken: string } }).data.csrfToken;
-  const answer = await fetch(`${base}/api/v1/auth/signin`, {
-    method: 'POST',
-    headers: { 'content-type': 'application/json', 'x-csrf-token': token, cookie: cookieOf(csrf) },
-    body: JSON.stringify({ email: EMAIL, password: PASSWORD }),
-  });
-  if (!answer.ok) throw new Error(`The bench coach could not sign in: ${answer.status} ${await answer.text()}`);
-  return cookieOf(answer);
-}
-
 /** CPU seconds (user + system) one process has used so far, from /proc (null where there is none). */
 function ownCpuSeconds(pid: number): number | null {
   try {
@@ -282,15 +225,9 @@ async function load(url: string, cookie: string | null, appPid: number | undefin
 }
 
 export async function run(): Promise<void> {
-  // The server modules read their configuration when first imported: point them at the bench database first.
-  process.env.DB_NAME = DB_NAME;
   process.env.LOG_LEVEL ??= 'warn';
-  const { config } = await import('../../server/config');
-  if (process.env.DB_PRIVATE !== '0') {
-    // Starts the private MariaDB when needed and grants the app user the bench database (scripts/lib/mariadb.sh).
-    execFileSync('bash', [join(ROOT, 'scripts', 'db.sh'), 'start'], { cwd: ROOT, stdio: ['ignore', 'inherit', 'inherit'], env: { ...process.env, BENCH_DB_NAME: DB_NAME } });
-  }
-  await ensureDatabase({ host: config.db.host, port: config.db.port, user: config.db.user, password: config.db.password });
+  // Points the server modules at the bench database before they read their configuration.
+  await ensureBenchDatabase(DB_NAME);
   const seeded = await seedClub();
   console.log(
     `club of ${FLIGHTS.toLocaleString('en')} flights, ${(FLIGHTS * POINTS_PER_FLIGHT).toLocaleString('en')} track points in "${DB_NAME}" ` +
@@ -299,31 +236,12 @@ export async function run(): Promise<void> {
       `load average ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores before the run (the figures hold only for a machine otherwise idle)`,
   );
 
-  const port = await freePort();
-  const env: NodeJS.ProcessEnv = {
-    ...process.env,
-    NODE_ENV: 'production',
-    DB_NAME,
-    HOST,
-    PORT: String(port),
-    FAKES: '0',
-    // Production refuses the local OAuth stand-in's URLs; the bench signs in with a password only.
-    GOOGLE_SIGNIN: '0',
-    WORKERS_IN_WEB: '0',
-    WEB_PROCESSES: WEB_PROCESSES,
-    LOG_LEVEL: 'warn',
-    SESSION_SECRET: 'bench-only-session-secret-not-for-production',
-  };
   // BENCH_CPU_PROF=DIR writes the app's CPU profile there (open it in Chrome's DevTools) to find where a request spends its time.
   const profile = process.env.BENCH_CPU_PROF ? ['--cpu-prof', '--cpu-prof-dir', process.env.BENCH_CPU_PROF] : [];
-  const child = spawn(process.execPath, [...profile, '--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
-  let output = '';
-  child.stdout?.on('data', (d: Buffer) => (output += d.toString()));
-  child.stderr?.on('data', (d: Buffer) => (output += d.toString()));
-  const base = `http://${HOST}:${port}`;
+  const app = await startProductionApp(productionEnv(DB_NAME, await freePort(), { WEB_PROCESSES }), profile);
+  const { base, child } = app;
   try {
-    await waitForHealth(base, child, () => output);
-    const cookie = await signIn(base);
+    const cookie = await passwordSignIn(base, EMAIL, PASSWORD);
     const club = `${base}/api/v1/clubs/${seeded.clubId}`;
     const cases: { name: string; url: string; auth: boolean; target: (f: Figures, health: Figures) => string }[] = [
       { name: 'GET /health', url: `${base}/api/v1/health`, auth: false, target: () => '' },
@@ -345,8 +263,7 @@ export async function run(): Promise<void> {
     }
     printTable(['request', 'req/s', 'p50 ms', 'p95 ms', 'p99 ms', 'app CPU ms/req', 'errors', 'target'], rows);
   } finally {
-    child.kill('SIGTERM');
-    await new Promise((r) => child.once('exit', r));
+    await app.stop();
   }
 }
 
@@ -356,12 +273,4 @@ function verdict(ok: boolean, text: string): string {
 
 function p95Target(f: Figures): string {
   return verdict(f.p95 <= P95_TARGET_MS, `p95 ≤ ${P95_TARGET_MS} ms`);
-}
-
-function printTable(head: string[], rows: string[][]): void {
-  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i]!.length)));
-  const line = (cells: string[]) => cells.map((c, i) => (i === 0 || i === cells.length - 1 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join('  ');
-  console.log(line(head));
-  console.log(widths.map((w) => '-'.repeat(w)).join('  '));
-  for (const r of rows) console.log(line(r));
 }

@@ -1,8 +1,6 @@
-import { createRouter, createWebHistory, type RouteLocationRaw, type RouteRecordRaw } from 'vue-router';
+import { createRouter, createWebHistory, type RouteLocationNormalized, type RouteLocationRaw, type RouteRecordRaw } from 'vue-router';
 import type { Role } from '@shared/types/api';
 import { setUnauthenticatedHandler } from '@/api/http';
-import AppLayout from '@/layout/AppLayout.vue';
-import OverviewView from '@/views/OverviewView.vue';
 import { useAuthStore } from '@/stores/auth';
 import { useClubStore } from '@/stores/club';
 
@@ -50,10 +48,9 @@ const routes: RouteRecordRaw[] = [
   },
   {
     path: '/',
-    component: AppLayout,
+    component: () => import('@/layout/AppLayout.vue'),
     children: [
-      // Overview is the first page after sign-in: it ships in the main bundle, every other page is loaded on demand.
-      { path: '', name: 'overview', component: OverviewView, meta: { title: 'Overview' } },
+      { path: '', name: 'overview', component: () => import('@/views/OverviewView.vue'), meta: { title: 'Overview' } },
       {
         path: 'my-flights',
         name: 'my-flights',
@@ -171,9 +168,24 @@ export function safeRedirect(value: unknown): string | null {
   return value;
 }
 
+/**
+ * Starts fetching the page chunks (`() => import(...)`) of `to` at once, so that on the first load they travel
+ * while the session is checked rather than after it; the router awaits the same (cached) module promises later.
+ */
+function startLoadingPages(to: RouteLocationNormalized): void {
+  for (const record of to.matched) {
+    for (const component of Object.values(record.components ?? {})) {
+      const isLoader = typeof component === 'function' && !('displayName' in component) && !('props' in component) && !('__vccOpts' in component);
+      // A failed load is reported by the router when it awaits the same import.
+      if (isLoader) (component as () => Promise<unknown>)().catch(() => undefined);
+    }
+  }
+}
+
 router.beforeEach(async (to): Promise<boolean | RouteLocationRaw> => {
   const auth = useAuthStore();
   if (!auth.loaded) {
+    startLoadingPages(to);
     try {
       await auth.loadMe();
     } catch {

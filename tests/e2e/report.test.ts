@@ -102,8 +102,11 @@ describe('Flights and the Flight report', () => {
       const canvas = await page.locator('[data-testid="trajectory-chart"] canvas').boundingBox();
       expect(canvas?.width ?? 0).toBeGreaterThan(300);
       expect(canvas?.height ?? 0).toBeGreaterThan(200);
-      await page.locator('[data-testid="speed-chart"] canvas').waitFor();
-      await page.locator('[data-testid="residual-chart"] canvas').waitFor();
+      // The speed and residual charts further down the page draw when they come into view.
+      for (const chart of ['speed-chart', 'residual-chart']) {
+        await page.getByTestId(chart).scrollIntoViewIfNeeded();
+        await page.locator(`[data-testid="${chart}"] canvas`).waitFor();
+      }
       expect(await page.getByTestId('report-cautions').textContent()).toMatch(/Landing zone/);
       await screenshot(page, 'report-coach');
 
