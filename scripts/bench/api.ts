@@ -19,8 +19,11 @@ import { ensureBenchDatabase, freePort, passwordSignIn, printTable, productionEn
 const DB_NAME = process.env.BENCH_DB_NAME ?? 'arcwright_bench_api';
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 20);
 const DURATION_S = Number(process.env.BENCH_SECONDS ?? 8);
-/** Web processes of the app under load (WEB_PROCESSES of server/web-processes.ts): one per core unless told. */
-const WEB_PROCESSES = process.env.BENCH_WEB_PROCESSES ?? 'auto';
+/**
+ * Web processes of the app under load (WEB_PROCESSES of server/web-processes.ts). One unless told: on 2 cores
+ * shared with the database a second web process only adds contention (measured: p95 up by a half).
+ */
+const WEB_PROCESSES = process.env.BENCH_WEB_PROCESSES ?? '1';
 
 const FLIGHTS = 10_000;
 const POINTS_PER_FLIGHT = 15;

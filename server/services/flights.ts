@@ -183,8 +183,26 @@ type FlightCore = Pick<
  */
 export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
   if (ids.length === 0) return [];
-  const rows = await sequelize.query<FlightListRow & FlightCore & { job: string | JobSummary | null }>(
-      `SELECT f.id, f.club_id AS clubId, f.clip_id AS clipId, f.athlete_profile_id AS athleteProfileId, f.action, f.ball_id AS ballId,
+  const rows = await sequelize.query<FlightRow>(`SELECT ${FLIGHT_ROW_COLUMNS} FROM flights f ${FLIGHT_ROW_JOINS} WHERE f.id IN (:ids)`, {
+    type: QueryTypes.SELECT,
+    replacements: { ids },
+  });
+  const byId = new Map(rows.map((r) => [Number(r.id), r]));
+  return ids.flatMap((id) => {
+    const row = byId.get(id);
+    return row ? [dtoOfRow(row)] : [];
+  });
+}
+
+/** A flight's list columns as FLIGHT_ROW_COLUMNS reads them. */
+type FlightRow = FlightListRow & FlightCore & { job: string | JobSummary | null };
+
+/**
+ * The list view's columns of `flights f` (with FLIGHT_ROW_JOINS): the flight with its athlete's name, session,
+ * point count, latest follow or fit job and the latest fit's summary (through flights.latest_fit_id, reading
+ * only the summary's fields of the fit's JSON).
+ */
+const FLIGHT_ROW_COLUMNS = `f.id, f.club_id AS clubId, f.clip_id AS clipId, f.athlete_profile_id AS athleteProfileId, f.action, f.ball_id AS ballId,
               f.frame_start AS frameStart, f.frame_end AS frameEnd, f.release_frame AS releaseFrame, f.release_height_m AS releaseHeightM, f.status, f.attention_reason AS attentionReason, f.notes,
               f.created_at AS createdAt, f.updated_at AS updatedAt,
               c.session_id AS sessionId, a.display_name AS athleteName,
@@ -195,21 +213,14 @@ export async function flightDtosByIds(ids: number[]): Promise<FlightDto[]> {
               JSON_VALUE(lf.result, '$.standardCarry') AS fitStandardCarry, lf.warnings AS fitWarnings,
               JSON_VALUE(lf.result, '$.release.mode') AS fitReleaseMode, JSON_VALUE(lf.result, '$.release.backFrames') AS fitReleaseBackFrames,
               (SELECT JSON_OBJECT('id', j.id, 'type', j.type, 'status', j.status, 'progress', j.progress, 'error', j.error)
-                 FROM jobs j WHERE j.flight_id = f.id AND j.type IN ('flight.follow', 'flight.fit') ORDER BY j.id DESC LIMIT 1) AS job
-         FROM flights f
-         JOIN clips c ON c.id = f.clip_id
+                 FROM jobs j WHERE j.flight_id = f.id AND j.type IN ('flight.follow', 'flight.fit') ORDER BY j.id DESC LIMIT 1) AS job`;
+const FLIGHT_ROW_JOINS = `JOIN clips c ON c.id = f.clip_id
          LEFT JOIN athlete_profiles a ON a.id = f.athlete_profile_id
-         LEFT JOIN fits lf ON lf.id = f.latest_fit_id
-        WHERE f.id IN (:ids)`,
-    { type: QueryTypes.SELECT, replacements: { ids } },
-  );
-  const byId = new Map(rows.map((r) => [Number(r.id), r]));
-  return ids.flatMap((id) => {
-    const row = byId.get(id);
-    if (!row) return [];
-    const job = typeof row.job === 'string' ? (JSON.parse(row.job) as JobSummary) : row.job;
-    return [toDto({ ...row, id, clubId: Number(row.clubId), clipId: Number(row.clipId), athleteProfileId: Number(row.athleteProfileId) }, row, job ?? undefined)];
-  });
+         LEFT JOIN fits lf ON lf.id = f.latest_fit_id`;
+
+function dtoOfRow(row: FlightRow): FlightDto {
+  const job = typeof row.job === 'string' ? (JSON.parse(row.job) as JobSummary) : row.job;
+  return toDto({ ...row, id: Number(row.id), clubId: Number(row.clubId), clipId: Number(row.clipId), athleteProfileId: Number(row.athleteProfileId) }, row, job ?? undefined);
 }
 
 function toDto(f: FlightCore, row: FlightListRow | undefined, job: JobSummary | undefined): FlightDto {
@@ -336,12 +347,25 @@ export async function listFlightsPage(club: ClubContext, query: FlightListQuery)
       Number(r.id),
     );
   const offset = pageOffset(query);
+  const countSql = `SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`;
+  if (!sort.nullable || query.order !== 'asc') {
+    // Going down, MariaDB sorts NULL last by itself. The page and the total in one round trip: the page's
+    // ids walk the sort's index in a derived table, the total is an uncorrelated subquery (read once), and
+    // the rows' columns are read for the page's ids only.
+    const dir = query.order === 'asc' ? 'ASC' : 'DESC';
+    const rows = await select<FlightRow & { total: number | string }>(
+      `SELECT ${FLIGHT_ROW_COLUMNS}, (${countSql}) AS total
+         FROM (SELECT f.id, ${sort.expr} AS sortKey ${from} WHERE ${filter.where} ORDER BY ${sort.expr} ${dir}, f.id ${dir} LIMIT :limit OFFSET :offset) page
+         JOIN flights f ON f.id = page.id
+         ${FLIGHT_ROW_JOINS}
+        ORDER BY page.sortKey ${dir}, page.id ${dir}`,
+      { limit: query.pageSize, offset },
+    );
+    if (rows.length > 0) meta.total = Number(rows[0]!.total);
+    else if (offset > 0) meta.total = Number((await select<{ n: number }>(countSql))[0]?.n ?? 0);
+    return { data: rows.map(dtoOfRow), meta };
+  }
   const pageIds = async (): Promise<number[]> => {
-    if (!sort.nullable || query.order !== 'asc') {
-      // Going down, MariaDB sorts NULL last by itself.
-      const dir = query.order === 'asc' ? 'ASC' : 'DESC';
-      return idsOf('', `${sort.expr} ${dir}, f.id ${dir}`, query.pageSize, offset);
-    }
     // Note: MariaDB sorts NULL first going up; the flights without the figure are read after the others
     // instead, so that each part still walks its index in order.
     const [counted] = await select<{ n: number }>(`SELECT COUNT(*) AS n ${from} WHERE ${filter.where} AND ${sort.expr} IS NOT NULL`);
@@ -352,10 +376,7 @@ export async function listFlightsPage(club: ClubContext, query: FlightListQuery)
     }
     return ids;
   };
-  const [ids, [counted]] = await Promise.all([
-    pageIds(),
-    select<{ n: number }>(`SELECT COUNT(*) AS n FROM flights f${query.sessionId ? ` ${JOIN_SQL.clip}` : ''} WHERE ${filter.where}`),
-  ]);
+  const [ids, [counted]] = await Promise.all([pageIds(), select<{ n: number }>(countSql)]);
   meta.total = Number(counted?.n ?? 0);
   return { data: await flightDtosByIds(ids), meta };
 }

@@ -21,13 +21,15 @@ const BESTS_SHOWN = 8;
 /** Fewer fitted reps than this say nothing about consistency. */
 const MIN_CONSISTENCY_REPS = 3;
 
+/** The newest flights needing attention, picked first by the index and joined after (not joined, then sorted). */
 async function attention(clubId: number): Promise<StaffOverview['attention']> {
   const rows = await sequelize.query<OverviewAttentionItem & { total: number | string; updatedAt: Date }>(
     `SELECT f.id AS flightId, f.clip_id AS clipId, c.session_id AS sessionId, a.display_name AS athleteName, f.action,
-            COALESCE(f.attention_reason, '') AS reason, f.updated_at AS updatedAt, COUNT(*) OVER () AS total
-       FROM flights f JOIN clips c ON c.id = f.clip_id JOIN athlete_profiles a ON a.id = f.athlete_profile_id
-      WHERE f.club_id = :clubId AND f.status = 'needs_attention'
-      ORDER BY f.updated_at DESC, f.id DESC LIMIT ${ATTENTION_SHOWN}`,
+            COALESCE(f.attention_reason, '') AS reason, f.updated_at AS updatedAt,
+            (SELECT COUNT(*) FROM flights n WHERE n.club_id = :clubId AND n.status = 'needs_attention') AS total
+       FROM (SELECT p.id FROM flights p WHERE p.club_id = :clubId AND p.status = 'needs_attention' ORDER BY p.updated_at DESC, p.id DESC LIMIT ${ATTENTION_SHOWN}) shown
+       JOIN flights f ON f.id = shown.id JOIN clips c ON c.id = f.clip_id JOIN athlete_profiles a ON a.id = f.athlete_profile_id
+      ORDER BY f.updated_at DESC, f.id DESC`,
     { type: QueryTypes.SELECT, replacements: { clubId } },
   );
   return {
