@@ -44,7 +44,7 @@ export const ArcwrightPreset = definePreset(Aura, {
     },
   },
   // Text colours Aura draws lighter than WCAG 2.1 AA allows (4.5:1 for text): secondary and text buttons, toggle
-  // buttons, and the messages' text on their pale tints (the caution on yellow was 2.8:1). Checked in
+  // buttons, and the messages' and toasts' text on their pale tints (the caution on yellow was 2.8:1). Checked in
   // tests/client/palette.test.ts and by axe in tests/e2e/screens.test.ts.
   components: {
     button: {
@@ -72,6 +72,18 @@ export const ArcwrightPreset = definePreset(Aura, {
           warn: { color: '{yellow.800}', outlined: { color: '{yellow.800}' }, simple: { color: '{yellow.800}' } },
           error: { color: '{red.800}', outlined: { color: '{red.800}' }, simple: { color: '{red.800}' } },
           secondary: { color: '{surface.700}', outlined: { color: '{surface.700}' }, simple: { color: '{surface.700}' } },
+        },
+      },
+    },
+    // The toasts' summaries on their pale tints (Aura's 600 shades: green 3.1:1).
+    toast: {
+      colorScheme: {
+        light: {
+          info: { color: '{blue.800}' },
+          success: { color: '{green.800}' },
+          warn: { color: '{yellow.800}' },
+          error: { color: '{red.800}' },
+          secondary: { color: '{surface.700}' },
         },
       },
     },
