@@ -5,22 +5,13 @@
  */
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { once } from 'node:events';
-import { createServer, type AddressInfo } from 'node:net';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
 import mariadb from 'mariadb';
+import { ROOT } from '../../../tests/support/db';
+import { freePort } from '../../../tests/support/process';
 
-export const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
+export { freePort, ROOT };
 export const HOST = '127.0.0.1';
-
-/** A port the system has free on HOST just now. */
-export async function freePort(): Promise<number> {
-  const probe = createServer().listen(0, HOST);
-  await once(probe, 'listening');
-  const { port } = probe.address() as AddressInfo;
-  await new Promise((done) => probe.close(done));
-  return port;
-}
 
 /**
  * Starts the private MariaDB when needed, grants the app user `name` (scripts/lib/mariadb.sh) and creates the
