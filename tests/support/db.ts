@@ -3,12 +3,12 @@
  * logic `npm start` uses), and drop, recreate and migrate a test database on it.
  */
 import { execFileSync } from 'node:child_process';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
 import mariadb from 'mariadb';
 import { config } from '../../server/config';
+import { ROOT } from './root';
 
-export const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+export { ROOT };
 
 /** Connection settings of the server's configuration (environment, then .env, then defaults). */
 export const dbSettings = {

@@ -5,7 +5,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { createServer } from 'node:net';
 import { join } from 'node:path';
-import { ROOT } from './db';
+import { ROOT } from './root';
 
 /** A free TCP port on 127.0.0.1 (the kernel's pick). */
 export function freePort(): Promise<number> {

@@ -7,7 +7,7 @@ import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { once } from 'node:events';
 import { join } from 'node:path';
 import mariadb from 'mariadb';
-import { ROOT } from '../../../tests/support/db';
+import { ROOT } from '../../../tests/support/root';
 import { freePort } from '../../../tests/support/process';
 
 export { freePort, ROOT };

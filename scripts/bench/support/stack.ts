@@ -7,7 +7,7 @@ import { mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Sequelize } from 'sequelize';
-import { ROOT } from '../../../tests/support/db';
+import { ROOT } from '../../../tests/support/root';
 import { freePort, startProcess, waitUntil, type ServerProcess } from '../../../tests/support/process';
 
 export interface BenchDatabase {
